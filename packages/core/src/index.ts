@@ -1,0 +1,27 @@
+// Errors
+export { TuningforkError, ERROR_CODES, isTuningforkError } from './errors.js';
+export type { ErrorCode } from './errors.js';
+
+// Options
+export {
+  resolveOptions, closestKey, formatValue,
+  checkFinite, checkPositive, checkNonNegative, checkInteger, checkRange, checkOneOf, checkBoolean,
+} from './options.js';
+
+// Randomness
+export { Rng, rng } from './rng.js';
+
+// Types and constructors
+export type {
+  UniformSignal, TimestampedSignal, Matrix, SpikeTrain, PhotometrySite, EventTable, TrialTable,
+  Session, PeriEventMatrix, ResultWarning,
+} from './types.js';
+export { toFloat64, sampleTime, timeToIndex, signalDuration, checkSampleRate, uniformSignal, inferSampleRate } from './time.js';
+export type { InferSampleRateOptions } from './time.js';
+export { makeEventTable, eventTimes, eventValues, eventNames } from './events.js';
+export { zerosMatrix, asMatrix, matrixRow } from './matrix.js';
+
+// Provenance
+export { VERSION } from './version.js';
+export { sha256, sha256Typed, sha256File, hashInput, canonicalJson, makeProvenance } from './provenance.js';
+export type { Provenance, ProvenanceInput } from './provenance.js';
