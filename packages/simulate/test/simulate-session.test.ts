@@ -87,8 +87,9 @@ describe('simulateSession', () => {
       pc[t] = Math.exp(z[choice[t]!]!) / (Math.exp(z[0]!) + Math.exp(z[1]!));
       rpe[t] = reward[t]! - st.q[choice[t]!]!;
       ape[t] = 1 - st.c[choice[t]!]!;
-      st.q[choice[t]!] += p.alpha * rpe[t]!;
-      for (let a = 0; a < 2; a++) st.c[a] += p.alphaC * ((a === choice[t] ? 1 : 0) - st.c[a]!);
+      const ch = choice[t]!;
+      st.q[ch] = st.q[ch]! + p.alpha * rpe[t]!;
+      for (let a = 0; a < 2; a++) st.c[a] = st.c[a]! + p.alphaC * ((a === ch ? 1 : 0) - st.c[a]!);
     }
     expectAllClose(sim.truth.rpe, rpe, { rtol: 1e-12, atol: 1e-15 });
     expectAllClose(sim.truth.ape, ape, { rtol: 1e-12, atol: 1e-15 });
