@@ -41,6 +41,12 @@ export const ERROR_CODES = {
   TF_DEGENERATE_SIGNAL: 'signal degenerate for the requested operation',
   /** A value outside the allowed set (unknown choice option, unknown event name, unknown class). */
   TF_BAD_VALUE: 'value outside the allowed set',
+  /** The analysis pipeline module cannot be loaded or does not export `analyzeSession` (cli `run`, `--pipeline`). */
+  TF_PIPELINE_UNAVAILABLE: 'analysis pipeline module missing or without analyzeSession',
+  /** Sessions of a batch have no finished outputs (a shard not run yet, or failed) when merging. */
+  TF_INCOMPLETE_BATCH: 'batch sessions without finished outputs',
+  /** An unexpected failure inside tuningfork (a bug, not bad input); the message asks for a report. */
+  TF_INTERNAL: 'unexpected internal failure',
 } as const;
 
 /** A stable tuningfork error code. */

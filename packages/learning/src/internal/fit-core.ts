@@ -1,0 +1,260 @@
+// Multi-start maximum-likelihood fit of a choice model on prepared data (trusted settings).
+import { TuningforkError } from '@tuningfork/core';
+import type { Matrix, ResultWarning, Rng } from '@tuningfork/core';
+import type { PreparedChoices } from '../choice/data.js';
+import { whereRow } from '../choice/data.js';
+import type { ChoiceParamName, ModelStructure, ParamTransform } from '../choice/model.js';
+import { bfgs } from './bfgs.js';
+import type { BfgsStop } from './bfgs.js';
+import { ChoiceEngine, compileModel } from './choice-engine.js';
+import { inverseSpd } from './linalg.js';
+import { atBound, jacobian, toNatural, toTransformed, transformFor } from './transforms.js';
+import type { Transform } from './transforms.js';
+
+/** Fully resolved fitting settings (plain data, so it can cross to a worker thread). */
+export interface FitSettings {
+  readonly bounds: readonly (readonly [number, number])[];
+  readonly startRanges: readonly (readonly [number, number])[];
+  readonly starts: number;
+  readonly gradientTolerance: number;
+  readonly maxIterations: number;
+  readonly bestTolerance: number;
+  readonly hessianStep: number;
+  readonly boundTolerance: number;
+}
+
+/** Per-start record of a multi-start fit. */
+export interface FitStarts {
+  /** Natural-scale start points, starts × k. */
+  readonly initial: Matrix;
+  /** Natural-scale end points, starts × k. */
+  readonly estimates: Matrix;
+  /** Final NLL of each start (Infinity when the start could not be evaluated). */
+  readonly nll: Float64Array;
+  readonly iterations: Int32Array;
+  /** 1 when the start met the gradient tolerance. */
+  readonly converged: Uint8Array;
+  /** Why each start stopped: 'gradient' (converged), 'max-iterations', 'line-search', 'non-finite-start'. */
+  readonly stop: readonly BfgsStop[];
+}
+
+/** Core fit result (the public `ChoiceModelFit` adds bookkeeping). */
+export interface CoreFit {
+  readonly paramNames: readonly ChoiceParamName[];
+  readonly estimates: Float64Array;
+  readonly se: Float64Array;
+  readonly seTransformed: Float64Array;
+  readonly transforms: readonly ParamTransform[];
+  readonly bounds: readonly (readonly [number, number])[];
+  readonly covariance: Matrix;
+  readonly atBound: Uint8Array;
+  readonly hessian: 'positive-definite' | 'not-positive-definite' | 'none';
+  readonly nll: number;
+  readonly k: number;
+  readonly n: number;
+  readonly aic: number;
+  readonly bic: number;
+  readonly nStarts: number;
+  readonly nAtBest: number;
+  readonly converged: boolean;
+  readonly starts: FitStarts;
+  readonly warnings: ResultWarning[];
+}
+
+function drawStart(random: Rng, name: ChoiceParamName, range: readonly [number, number], tr: Transform): number {
+  const [lo, hi] = range;
+  const u = random.uniform();
+  let v = name === 'beta' && lo > 0 ? Math.exp(Math.log(lo) + u * (Math.log(hi) - Math.log(lo))) : lo + u * (hi - lo);
+  // keep strictly inside the bounds so the transformed start is finite
+  const w = Number.isFinite(tr.hi - tr.lo) ? (tr.hi - tr.lo) * 1e-6 : 1e-6;
+  if (Number.isFinite(tr.lo) && v <= tr.lo + w) v = tr.lo + w;
+  if (Number.isFinite(tr.hi) && v >= tr.hi - w) v = tr.hi - w;
+  return v;
+}
+
+/**
+ * Fit `m` to `d` from `settings.starts` starts drawn from `random.stream(s)`.
+ * @throws {TuningforkError} TF_BAD_LIKELIHOOD when no start has a finite likelihood (names the trial),
+ * TF_TOO_FEW_SAMPLES when there are no more choices than parameters.
+ */
+export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, settings: FitSettings, random: Rng): CoreFit {
+  const k = m.params.length;
+  const n = d.nChoices;
+  if (n <= k) {
+    throw new TuningforkError('TF_TOO_FEW_SAMPLES', `${fn}: ${n} trials with a choice cannot identify the ${k} parameters of model '${m.name}'; need more than ${k}.`, { fn, nChoices: n, k });
+  }
+  const engine = new ChoiceEngine(compileModel(m), d.nOptions);
+  const transforms = settings.bounds.map(([lo, hi]) => transformFor(lo, hi));
+  const theta = new Float64Array(k);
+  const gTheta = new Float64Array(k);
+  const objective = (phi: Float64Array, g: Float64Array): number => {
+    for (let j = 0; j < k; j++) theta[j] = toNatural(transforms[j]!, phi[j]!);
+    const f = engine.nll(d, theta, gTheta, null);
+    if (!Number.isFinite(f)) return Infinity;
+    for (let j = 0; j < k; j++) g[j] = gTheta[j]! * jacobian(transforms[j]!, phi[j]!);
+    return f;
+  };
+  const warnings: ResultWarning[] = [...d.warnings];
+  const nStarts = k === 0 ? 1 : settings.starts;
+  const initial = new Float64Array(nStarts * k);
+  const ends = new Float64Array(nStarts * k);
+  const nllStarts = new Float64Array(nStarts);
+  const iterations = new Int32Array(nStarts);
+  const converged = new Uint8Array(nStarts);
+  const stops: BfgsStop[] = [];
+  let best = -1;
+  let bestPhi: Float64Array = new Float64Array(k);
+  for (let s = 0; s < nStarts; s++) {
+    const r = random.stream(s);
+    const phi0 = new Float64Array(k);
+    for (let j = 0; j < k; j++) {
+      const v = drawStart(r, m.params[j]!, settings.startRanges[j]!, transforms[j]!);
+      initial[s * k + j] = v;
+      phi0[j] = toTransformed(transforms[j]!, v);
+    }
+    const out = bfgs(objective, phi0, { gtol: settings.gradientTolerance, maxIterations: settings.maxIterations, maxStep: 5 });
+    for (let j = 0; j < k; j++) ends[s * k + j] = toNatural(transforms[j]!, out.x[j]!);
+    nllStarts[s] = Number.isFinite(out.f) ? out.f : Infinity;
+    iterations[s] = out.iterations;
+    converged[s] = out.converged ? 1 : 0;
+    stops.push(out.stop);
+    if (Number.isFinite(out.f) && (best < 0 || out.f < nllStarts[best]!)) {
+      best = s;
+      bestPhi = out.x;
+    }
+  }
+  if (best < 0) {
+    // Name the trial where the likelihood breaks, at the first start.
+    const th = new Float64Array(k);
+    for (let j = 0; j < k; j++) th[j] = initial[j]!;
+    engine.nll(d, th, null, null);
+    const row = engine.badRow >= 0 ? engine.badRow : 0;
+    const w = whereRow(d, row);
+    throw new TuningforkError('TF_BAD_LIKELIHOOD', `${fn}: the log-likelihood of model '${m.name}' is not finite at ${w.text} from every start (choice ${d.choice[row]}, outcome ${d.reward[row]}); check the outcome scale (|reward| very large?) and the parameter bounds.`, { fn, session: w.session, row: w.row, trial: w.trial });
+  }
+  const nll = nllStarts[best]!;
+  let nAtBest = 0;
+  for (let s = 0; s < nStarts; s++) if (nllStarts[s]! <= nll + settings.bestTolerance) nAtBest++;
+  const estimates = new Float64Array(k);
+  for (let j = 0; j < k; j++) estimates[j] = toNatural(transforms[j]!, bestPhi[j]!);
+  const bound = new Uint8Array(k);
+  for (let j = 0; j < k; j++) bound[j] = atBound(transforms[j]!, estimates[j]!, settings.boundTolerance) ? 1 : 0;
+
+  // ---- standard errors: central differences of the analytic gradient on the φ scale (free parameters only)
+  const free: number[] = [];
+  for (let j = 0; j < k; j++) if (!bound[j]) free.push(j);
+  const kf = free.length;
+  const se = new Float64Array(k).fill(NaN);
+  const seT = new Float64Array(k).fill(NaN);
+  const cov = new Float64Array(k * k).fill(NaN);
+  let hessian: CoreFit['hessian'] = 'none';
+  if (kf > 0) {
+    const hmat = new Float64Array(kf * kf);
+    const gp = new Float64Array(k);
+    const gm = new Float64Array(k);
+    const phi = Float64Array.from(bestPhi);
+    let finite = true;
+    for (let b = 0; b < kf; b++) {
+      const j = free[b]!;
+      const step = settings.hessianStep * Math.max(1, Math.abs(bestPhi[j]!));
+      phi[j] = bestPhi[j]! + step;
+      const fp = objective(phi, gp);
+      phi[j] = bestPhi[j]! - step;
+      const fm = objective(phi, gm);
+      phi[j] = bestPhi[j]!;
+      if (!Number.isFinite(fp) || !Number.isFinite(fm)) finite = false;
+      for (let a = 0; a < kf; a++) hmat[a * kf + b] = (gp[free[a]!]! - gm[free[a]!]!) / (2 * step);
+    }
+    for (let a = 0; a < kf; a++) {
+      for (let b = 0; b < a; b++) {
+        const v = 0.5 * (hmat[a * kf + b]! + hmat[b * kf + a]!);
+        hmat[a * kf + b] = v;
+        hmat[b * kf + a] = v;
+      }
+    }
+    const inv = finite ? inverseSpd(hmat, kf) : null;
+    if (inv === null) {
+      hessian = 'not-positive-definite';
+      warnings.push({
+        code: 'hessian-not-positive-definite',
+        message: `${fn}: the Hessian of the NLL at the best fit of model '${m.name}' is not positive definite: the parameters (${free.map((j) => m.params[j]).join(', ')}) are not identifiable from these data; standard errors are NaN.`,
+        details: { params: free.map((j) => m.params[j]) },
+      });
+    } else {
+      hessian = 'positive-definite';
+      for (let a = 0; a < kf; a++) {
+        const ja = free[a]!;
+        const da = jacobian(transforms[ja]!, bestPhi[ja]!);
+        seT[ja] = Math.sqrt(inv[a * kf + a]!);
+        for (let b = 0; b < kf; b++) {
+          const jb = free[b]!;
+          const db = jacobian(transforms[jb]!, bestPhi[jb]!);
+          cov[ja * k + jb] = da * db * inv[a * kf + b]!; // delta method
+        }
+        se[ja] = Math.sqrt(cov[ja * k + ja]!);
+      }
+    }
+  }
+  const weak = m.params.filter((_, j) => {
+    const [lo, hi] = settings.bounds[j]!;
+    const limit = Number.isFinite(hi - lo) ? (hi - lo) / 2 : 100 * Math.max(1, Math.abs(estimates[j]!));
+    return se[j]! > limit;
+  });
+  if (weak.length > 0) {
+    warnings.push({
+      code: 'weakly-identified',
+      message: `${fn}: the standard error of ${weak.join(', ')} (model '${m.name}') exceeds half its bounded range (or 100 × its size): the data barely constrain ${weak.length === 1 ? 'it' : 'them'} (e.g. a near-deterministic chooser on a likelihood plateau).`,
+      details: { params: weak },
+    });
+  }
+  if (kf < k) {
+    const names = m.params.filter((_, j) => bound[j]);
+    warnings.push({
+      code: 'parameter-at-bound',
+      message: `${fn}: ${names.join(', ')} of model '${m.name}' ${names.length === 1 ? 'is' : 'are'} at a bound (or diverging); no standard error is given for ${names.length === 1 ? 'it' : 'them'} and the others are conditional on ${names.length === 1 ? 'its' : 'their'} value.`,
+      details: { params: names },
+    });
+  }
+  if (!converged[best]) {
+    warnings.push({
+      code: 'best-start-not-converged',
+      message: `${fn}: the best start stopped by '${stops[best]}' before the gradient fell below ${settings.gradientTolerance}; the estimate may be imprecise.`,
+      details: { stop: stops[best] },
+    });
+  }
+  if (nStarts > 1 && nAtBest === 1) {
+    warnings.push({
+      code: 'single-start-at-best',
+      message: `${fn}: only 1 of ${nStarts} starts reached the best NLL (within ${settings.bestTolerance}); the likelihood may have several local optima — consider more starts.`,
+      details: { nStarts },
+    });
+  }
+  return {
+    paramNames: m.params,
+    estimates,
+    se,
+    seTransformed: seT,
+    transforms: transforms.map((t) => t.kind),
+    bounds: settings.bounds,
+    covariance: { data: cov, rows: k, cols: k },
+    atBound: bound,
+    hessian,
+    nll,
+    k,
+    n,
+    aic: 2 * k + 2 * nll,
+    bic: k * Math.log(n) + 2 * nll,
+    nStarts,
+    nAtBest,
+    converged: converged[best] === 1,
+    starts: {
+      initial: { data: initial, rows: nStarts, cols: k },
+      estimates: { data: ends, rows: nStarts, cols: k },
+      nll: nllStarts,
+      iterations,
+      converged,
+      stop: stops,
+    },
+    warnings,
+  };
+}

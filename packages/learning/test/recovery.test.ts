@@ -1,0 +1,57 @@
+import { describe, expect, it } from 'vitest';
+import { expectAllClose } from '@tuningfork/test-utils';
+import { modelRecovery, parameterRecovery } from '../src/index.js';
+
+describe('parameterRecovery', () => {
+  // Wilson & Collins (2019, parameter-recovery section; from memory): with a few hundred trials and moderate β, Q-learning α
+  // and β are recovered with true–fitted correlations near 1 (criterion 0.8 here; the ≥ 50-agent
+  // study with the 0.9 criterion is scripts/recovery-study.ts).
+  it('parameterRecovery recovers α and β of Q-learning agents (r ≥ 0.8 with 16 agents × 400 trials)', async () => {
+    const res = await parameterRecovery({ model: 'q', nAgents: 16, nTrials: 400, starts: 4, seed: 5, ranges: { beta: [0.5, 5] } });
+    expect(res.paramNames).toEqual(['alpha', 'beta']);
+    expect(res.correlation[0]!).toBeGreaterThanOrEqual(0.8);
+    expect(res.correlation[1]!).toBeGreaterThanOrEqual(0.8);
+    expect(res.rankCorrelation[1]!).toBeGreaterThanOrEqual(0.8);
+    // bias and RMSE follow their definitions
+    const k = 2;
+    let b = 0;
+    for (let a = 0; a < 16; a++) b += res.fitted.data[a * k]! - res.truth.data[a * k]!;
+    expectAllClose(res.bias[0]!, b / 16, { rtol: 1e-12 });
+    expect(res.fittedCorrelation.data[1]).toBe(res.fittedCorrelation.data[2]); // symmetric α–β entry
+    expect(res.seed).toBe(5);
+  });
+
+  it('parameterRecovery gives bit-identical results on 2 worker threads and on 1', async () => {
+    const opts = { model: 'q', nAgents: 3, nTrials: 150, starts: 2, seed: 9 } as const;
+    const serial = await parameterRecovery(opts);
+    const parallel = await parameterRecovery({ ...opts, workers: 2 });
+    expect(parallel.workersUsed).toBe(2); // the threads really ran (no fallback to this thread)
+    expect(parallel.warnings.map((w) => w.code)).not.toContain('workers-unavailable');
+    expect(Array.from(parallel.truth.data)).toEqual(Array.from(serial.truth.data));
+    expect(Array.from(parallel.fitted.data)).toEqual(Array.from(serial.fitted.data));
+    expect(Array.from(parallel.nll)).toEqual(Array.from(serial.nll));
+  });
+
+  it('parameterRecovery rejects a draw range outside the parameter domain', async () => {
+    await expect(parameterRecovery({ model: 'q', nAgents: 3, ranges: { alpha: [0.5, 1.5] } })).rejects.toMatchObject({ code: 'TF_BAD_OPTION' });
+  });
+});
+
+describe('modelRecovery', () => {
+  // Wilson & Collins (2019, model-recovery section; from memory): WSLS and Q-learning are well separated by BIC.
+  it('modelRecovery separates win-stay/lose-shift from Q-learning (confusion rows sum to 1, accuracy ≥ 0.8)', async () => {
+    const res = await modelRecovery({ models: ['wsls', 'q'], agentsPerModel: 5, nTrials: 300, starts: 3, seed: 1 });
+    expect(res.models).toEqual(['wsls', 'q']);
+    for (let g = 0; g < 2; g++) expectAllClose(res.confusion.data[g * 2]! + res.confusion.data[g * 2 + 1]!, 1, { rtol: 1e-15 });
+    expect(res.accuracy).toBeGreaterThanOrEqual(0.8);
+    // inversion = confusion normalised by columns (Bayes with equal agents per generator)
+    for (let f = 0; f < 2; f++) {
+      const col = res.confusion.data[f]! + res.confusion.data[2 + f]!;
+      if (col > 0) expectAllClose(res.inversion.data[f]!, res.confusion.data[f]! / col, { rtol: 1e-15 });
+    }
+  });
+
+  it('modelRecovery rejects a single candidate model', async () => {
+    await expect(modelRecovery({ models: ['q'] })).rejects.toMatchObject({ code: 'TF_BAD_OPTION' });
+  });
+});
