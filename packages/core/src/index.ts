@@ -16,7 +16,7 @@ export type {
   UniformSignal, TimestampedSignal, Matrix, SpikeTrain, PhotometrySite, EventTable, TrialTable,
   Session, PeriEventMatrix, ResultWarning,
 } from './types.js';
-export { toFloat64, sampleTime, timeToIndex, signalDuration, checkSampleRate, uniformSignal, inferSampleRate } from './time.js';
+export { toFloat64, sampleTime, timeToIndex, signalDuration, checkSampleRate, uniformSignal, inferSampleRate, selectKth } from './time.js';
 export type { InferSampleRateOptions } from './time.js';
 export { makeEventTable, eventTimes, eventValues, eventNames } from './events.js';
 export { zerosMatrix, asMatrix, matrixRow } from './matrix.js';

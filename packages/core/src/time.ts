@@ -60,12 +60,45 @@ export function inferSampleRate(timestamps: ArrayLike<number>, options: InferSam
     }
     d[i - 1] = dt;
   }
-  const sorted = Float64Array.from(d).sort();
-  const med = sorted[(sorted.length - 1) >> 1]!;
+  const med = selectKth(Float64Array.from(d), (d.length - 1) >> 1);
   for (let i = 0; i < d.length; i++) {
     if (Math.abs(d[i]! - med) > tol * med) {
       throw new TuningforkError('TF_IRREGULAR_SAMPLING', `inferSampleRate: interval at index ${i + 1} (t=${timestamps[i + 1]}) is ${d[i]} s, median is ${med} s (tolerance ${tol * 100} %). Resample with signal.toUniform first.`, { index: i + 1, time: timestamps[i + 1], interval: d[i], median: med });
     }
   }
   return 1 / med;
+}
+
+/**
+ * k-th smallest value (0-based) of `a`, found in expected O(n) by quickselect with
+ * median-of-three pivots (Hoare 1961, "Algorithm 65: find", CACM 4(7):321). Reorders `a`.
+ */
+export function selectKth(a: Float64Array, k: number): number {
+  let lo = 0;
+  let hi = a.length - 1;
+  while (hi > lo) {
+    const mid = (lo + hi) >> 1;
+    // Median of three as pivot.
+    let x = a[lo]!, y = a[mid]!, z = a[hi]!;
+    if (x > y) [x, y] = [y, x];
+    if (y > z) { y = z; if (x > y) y = x; }
+    const pivot = y;
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i]! < pivot) i++;
+      while (a[j]! > pivot) j--;
+      if (i <= j) {
+        const t = a[i]!;
+        a[i] = a[j]!;
+        a[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return a[k]!;
+  }
+  return a[k]!;
 }

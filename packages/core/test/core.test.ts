@@ -2,8 +2,9 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import {
   canonicalJson, checkInteger, checkOneOf, checkPositive, eventTimes, hashInput, inferSampleRate, makeEventTable,
-  makeProvenance, resolveOptions, sha256, timeToIndex, TuningforkError, VERSION, asMatrix,
+  makeProvenance, resolveOptions, sha256, timeToIndex, TuningforkError, VERSION, asMatrix, selectKth,
 } from '../src/index.js';
+import fc from 'fast-check';
 
 describe('resolveOptions', () => {
   const DEFAULTS = Object.freeze({ preSec: 2, postSec: 5, edges: 'drop' as const });
@@ -86,5 +87,15 @@ describe('asMatrix', () => {
   it('checks rows × cols against the data length', () => {
     expect(asMatrix(new Float64Array(6), 2, 3).cols).toBe(3);
     expect(() => asMatrix(new Float64Array(5), 2, 3)).toThrow(expect.objectContaining({ code: 'TF_SHAPE_MISMATCH' }));
+  });
+});
+
+describe('selectKth', () => {
+  it('returns the k-th order statistic, as a full sort does (property)', () => {
+    fc.assert(fc.property(fc.array(fc.double({ noNaN: true, min: -1e6, max: 1e6 }), { minLength: 1, maxLength: 200 }), fc.nat(), (xs, kRaw) => {
+      const k = kRaw % xs.length;
+      const sorted = Float64Array.from(xs).sort();
+      expect(selectKth(Float64Array.from(xs), k)).toBe(sorted[k]);
+    }), { seed: 3, numRuns: 300 });
   });
 });
