@@ -1,0 +1,59 @@
+import { TuningforkError, checkPositive, resolveOptions } from '@tuningfork/core';
+import type { UniformSignal } from '@tuningfork/core';
+import { butterworth } from '../filter/design.js';
+import { zeroPhasePlan } from '../filter/zero-phase.js';
+import { medianInPlace } from '../internal/select.js';
+import { checkUniform, requireFinite } from '../internal/validate.js';
+import { MAD_TO_SD } from '../correction/z-score.js';
+
+/** Options of {@link estimateSnr}. */
+export interface SnrOptions {
+  /** Signal band [low, high], Hz. @defaultValue [0.1, 3] */
+  bandHz?: readonly [number, number];
+  /** Noise = residual above this frequency, Hz. @defaultValue 5 */
+  noiseAboveHz?: number;
+}
+
+/** Result of {@link estimateSnr}. */
+export interface SnrEstimate {
+  /** sd(band-passed) / (1.4826·MAD(high-passed)). */
+  readonly snr: number;
+  readonly signalSd: number;
+  readonly noiseSd: number;
+}
+
+const DEFAULTS = Object.freeze({ bandHz: [0.1, 3] as readonly [number, number], noiseAboveHz: 5 });
+
+/**
+ * Signal-to-noise ratio of a photometry channel (SIGNALS.md §1.8; common practice, no source):
+ * the standard deviation of the 0.1–3 Hz band (where sensor transients live) over a robust
+ * standard deviation (1.4826·MAD) of everything above 5 Hz. Both filters are zero-phase
+ * Butterworth (band-pass order 2, high-pass order 4).
+ *
+ * @throws {TuningforkError} TF_NON_FINITE, TF_BAD_OPTION (bands above Nyquist), TF_TOO_FEW_SAMPLES.
+ */
+export function estimateSnr(signal: UniformSignal, options: SnrOptions = {}): SnrEstimate {
+  const fn = 'estimateSnr';
+  const opts = resolveOptions(fn, DEFAULTS, options);
+  checkUniform(fn, 'signal', signal);
+  const band = opts.bandHz;
+  if (!Array.isArray(band) || band.length !== 2) throw new TuningforkError('TF_BAD_OPTION', `${fn}: bandHz must be [low, high].`, { fn });
+  const noiseHz = checkPositive(fn, 'noiseAboveHz', opts.noiseAboveHz);
+  requireFinite(fn, 'signal.values', signal.values, signal);
+  const fs = signal.sampleRate;
+  const bp = butterworth({ order: 2, type: 'bandpass', cutoffHz: [band[0], band[1]], sampleRate: fs });
+  const hp = butterworth({ order: 4, type: 'highpass', cutoffHz: noiseHz, sampleRate: fs });
+  const x = signal.values;
+  const yb = zeroPhasePlan(bp).apply(x);
+  let m = 0;
+  for (let i = 0; i < yb.length; i++) m += yb[i]!;
+  m /= yb.length;
+  let ss = 0;
+  for (let i = 0; i < yb.length; i++) ss += (yb[i]! - m) * (yb[i]! - m);
+  const signalSd = Math.sqrt(ss / yb.length);
+  const yh = zeroPhasePlan(hp).apply(x, yb);
+  const med = medianInPlace(Float64Array.from(yh));
+  for (let i = 0; i < yh.length; i++) yh[i] = Math.abs(yh[i]! - med);
+  const noiseSd = MAD_TO_SD * medianInPlace(yh);
+  return { snr: signalSd / noiseSd, signalSd, noiseSd };
+}
