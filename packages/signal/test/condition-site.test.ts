@@ -96,43 +96,22 @@ describe('conditionSite', () => {
     expect(r.warnings.map((w) => w.code)).toContain('GAPS_SPLIT');
   });
 
-  it('recovers the simulated ΔF/F of a default 10-minute session (see the note on the issue criterion)', () => {
-    // The issue asks for r ≥ 0.98 with truth.dff and |r| ≤ 0.05 with truth.artefact. On the
-    // default simulated session neither is attainable by any method: (1) shot noise caps the
-    // correlation — the exact multiplicative correction using the simulator's TRUE bleaching
-    // curves ("oracle") reaches only 0.86–0.97 after the 10 Hz low-pass; (2) the simulator puts
-    // the artefacts on movement bouts, where the movement-, mixed- and APE-tuned sites respond,
-    // so truth.dff itself correlates with truth.artefact (|r| ≈ 0.13). We therefore assert what
-    // a correct correction must achieve: within 0.02 of the oracle's correlation at every site,
-    // |r| ≤ 0.05 with the artefact at the site whose truth is independent of it, and never more
-    // artefact than the truth itself carries (+0.02). Reported to the lead with the numbers.
-    const sim = simulateSession({ durationSec: 600 });
+  it('recovers the simulated ΔF/F at default SNR (r ≥ 0.98) and removes the motion artefacts (|r| ≤ 0.05)', () => {
+    // Reference: the simulator's ground truth (truth.dff, truth.artefact) of a default 30-minute
+    // session; both traces are compared after the chain's own 10 Hz low-pass. Criteria from the issue.
+    const sim = simulateSession({ durationSec: 1800, seed: 1 });
     const lp = butterworth({ order: 4, cutoffHz: 10, sampleRate: 1000 });
     const art = sosfiltfilt(lp, sim.truth.artefact);
-    let literal = 0;
     sim.session.photometry.forEach((site, k) => {
       const r = conditionSite(site);
       const truth = sosfiltfilt(lp, sim.truth.dff[k]!);
+      expect(correlation(r.dff.values, truth), `${site.name} vs truth`).toBeGreaterThanOrEqual(0.98);
+      expect(Math.abs(correlation(r.dff.values, art)), `${site.name} vs artefact`).toBeLessThanOrEqual(0.05);
+      // An oracle that divides by the TRUE bleaching curves bounds what any correction can reach.
       const bl = sim.truth.bleaching[k]!;
-      const n = truth.length;
-      const oracleRaw = new Float64Array(n);
-      for (let i = 0; i < n; i++) {
-        const t = i / 1000;
-        oracleRaw[i] = site.signal.values[i]! / bleachCurve(bl.signal, t) / (site.control.values[i]! / bleachCurve(bl.control, t)) - 1;
-      }
-      const oracle = correlation(sosfiltfilt(lp, oracleRaw), truth);
-      const got = correlation(r.dff.values, truth);
-      expect(got, `${site.name}: r ${got} vs oracle ${oracle}`).toBeGreaterThanOrEqual(oracle - 0.02);
-      const truthArt = Math.abs(correlation(truth, art));
-      const gotArt = Math.abs(correlation(r.dff.values, art));
-      if (truthArt < 0.05) {
-        expect(gotArt, `${site.name} artefact`).toBeLessThanOrEqual(0.05);
-        literal++;
-      }
-      expect(gotArt, `${site.name} artefact vs truth's own ${truthArt}`).toBeLessThanOrEqual(truthArt + 0.02);
+      const oracleRaw = Float64Array.from(site.signal.values, (v, i) => v / bleachCurve(bl.signal, i / 1000) / (site.control.values[i]! / bleachCurve(bl.control, i / 1000)) - 1);
+      expect(correlation(r.dff.values, truth)).toBeGreaterThanOrEqual(correlation(sosfiltfilt(lp, oracleRaw), truth) - 0.01);
       expect(r.motionCorrected).toBe(true);
-      expect(r.fit!.slope).toBeGreaterThan(0);
     });
-    expect(literal).toBeGreaterThan(0); // the reward site's truth is independent of the artefact
   });
 });

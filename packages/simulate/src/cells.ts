@@ -18,7 +18,9 @@ export function makeCells(o: Required<SimulateOptions>, rng: Rng): CellTruth[] {
       kind, class: cls, sign,
       gainReward: carriesReward ? g() : 0,
       gainMovement: carriesMove ? sign * g() : 0,
-      gainApe: cls === 'action-prediction' ? sign * g() : 0,
+      // APE lies in [0, 1] (typically ≈ 0.3), so its kernel gets twice the scale: a typical APE
+      // response is then about as large as a typical RPE response.
+      gainApe: cls === 'action-prediction' ? 2 * sign * g() : 0,
       baseRate: base,
     };
   };

@@ -14,18 +14,20 @@ export const SIMULATE_DEFAULTS: Readonly<Required<SimulateOptions>> = Object.fre
   siteClasses: CELL_CLASSES,
   unitClasses: CELL_CLASSES,
   responseDff: 0.03,
-  shotNoise: 0.01,
+  shotNoise: 0.003,
   backgroundDff: 0.003,
   artefactSize: 0.05,
+  artefactRate: 0.03,
+  artefactAtMovement: 0,
   blockTrials: Object.freeze([30, 60]) as readonly [number, number],
   rewardProbs: Object.freeze([0.8, 0.2]) as readonly [number, number],
-  bonusRate: 0.01,
+  bonusRate: 0.03,
   movementRate: 0.08,
   accelRate: 100,
-  alpha: 0.4,
-  beta: 5,
+  alpha: 0.3,
+  beta: 2.5,
   alphaC: 0.3,
-  betaC: 1.5,
+  betaC: 2.5,
   unitBaseRate: Object.freeze([4, 12]) as readonly [number, number],
   unitResponseHz: 15,
   refractorySec: 0.002,
@@ -79,6 +81,8 @@ export function resolveSimulateOptions(options: SimulateOptions | undefined): Re
   checkRange(fn, 'shotNoise', o.shotNoise, 0, 1);
   checkRange(fn, 'backgroundDff', o.backgroundDff, 0, 1);
   checkRange(fn, 'artefactSize', o.artefactSize, 0, 0.5);
+  checkRange(fn, 'artefactRate', o.artefactRate, 0, 1);
+  checkRange(fn, 'artefactAtMovement', o.artefactAtMovement, 0, 1);
   checkPair(fn, 'blockTrials', o.blockTrials, 1, 100000, true);
   checkPair(fn, 'rewardProbs', o.rewardProbs, 0, 1, false, false);
   checkNonNegative(fn, 'bonusRate', o.bonusRate);

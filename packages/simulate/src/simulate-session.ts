@@ -24,7 +24,8 @@ const VIGOUR_REF = 0.3;
  *
  * Photometry: per site, sensor = B_s(t)·(1 + ΔF/F(t))·(1 + m(t)) + noise and control =
  * B_c(t)·(1 + m(t)) + noise, where B is a double-exponential bleaching curve (different per
- * channel), m a shared multiplicative motion artefact at half of the movement bouts, and the noise
+ * channel), m a shared multiplicative motion artefact (at random times and, optionally, during
+ * movement bouts), and the noise
  * white and shot-like (sd ∝ √B). ΔF/F is the cell's response plus slow AR(1) background.
  * Units: inhomogeneous Poisson spikes with an absolute refractory period (thinning), rate =
  * baseline + responses, rectified at 0.
@@ -145,21 +146,32 @@ function neuralDrivers(n: number, task: TaskRun, bouts: MovementBouts): Drivers 
   return { reward, movement, ape, maxReward: maxAbs(reward), maxMovement: maxAbs(movement), maxApe: maxAbs(ape) };
 }
 
-/** Shared fractional artefact: a raised-cosine dip over half of the movement bouts. */
+/**
+ * Shared fractional motion artefact: raised-cosine dips at random times (Poisson, artefactRate,
+ * 0.4–1.4 s long) and, optionally, during a fraction of the movement bouts.
+ */
 function motionArtefact(n: number, o: Required<SimulateOptions>, bouts: MovementBouts, rng: Rng): Float64Array {
   const a = new Float64Array(n);
   if (o.artefactSize === 0) return a;
-  for (let b = 0; b < bouts.onset.length; b++) {
-    const size = o.artefactSize * (0.5 + rng.uniform());
-    if (bouts.artefact[b] !== 1) continue;
-    const on = bouts.onset[b]!;
-    const dur = bouts.duration[b]! + 0.2;
+  const dip = (on: number, dur: number, size: number) => {
     const i0 = Math.max(0, Math.ceil(on * GRID_RATE));
     const i1 = Math.min(n - 1, Math.floor((on + dur) * GRID_RATE));
     for (let i = i0; i <= i1; i++) {
       const u = (i / GRID_RATE - on) / dur;
       a[i] = a[i]! - size * 0.5 * (1 - Math.cos(2 * Math.PI * u));
     }
+  };
+  const duration = n / GRID_RATE;
+  if (o.artefactRate > 0) {
+    for (let t = rng.exponential(o.artefactRate); t < duration; t += rng.exponential(o.artefactRate)) {
+      dip(t, 0.4 + rng.uniform(), o.artefactSize * (0.5 + rng.uniform()));
+    }
+  }
+  const bRng = rng.stream(1);
+  for (let b = 0; b < bouts.onset.length; b++) {
+    const hit = bRng.uniform() < o.artefactAtMovement;
+    const size = o.artefactSize * (0.5 + bRng.uniform());
+    if (hit) dip(bouts.onset[b]!, bouts.duration[b]! + 0.2, size);
   }
   return a;
 }

@@ -10,8 +10,8 @@ export const TASK_TIMING = Object.freeze({
   /** Choice (port entry) → outcome (sucrose drop or omission tone-free timeout). */
   outcomeDelaySec: 0.5,
   /** Inter-trial interval after the outcome: minimum + exponential(mean). */
-  itiMinSec: 4,
-  itiMeanExtraSec: 4,
+  itiMinSec: 3,
+  itiMeanExtraSec: 3,
   /** Bonus rewards keep this distance from outcomes and cues. */
   bonusGuardSec: 2,
   /** Last outcome at least this long before the end of the session. */
@@ -170,8 +170,6 @@ export interface MovementBouts {
   readonly duration: Float64Array;
   readonly vigour: Float64Array;
   readonly atChoice: Uint8Array;
-  /** 1 when the bout also shakes the optical fiber (shared motion artefact). */
-  readonly artefact: Uint8Array;
 }
 
 /** Minimum quiet time between the end of one bout and the next onset (s). */
@@ -208,11 +206,10 @@ export function movementBouts(o: Required<SimulateOptions>, task: TaskRun, rng: 
   const n = kept.length;
   const out = {
     onset: new Float64Array(n), duration: new Float64Array(n), vigour: new Float64Array(n),
-    atChoice: new Uint8Array(n), artefact: new Uint8Array(n),
+    atChoice: new Uint8Array(n),
   };
   kept.forEach((b, i) => {
     out.onset[i] = b.on; out.duration[i] = b.dur; out.vigour[i] = b.vig; out.atChoice[i] = b.choice;
   });
-  for (let i = 0; i < n; i++) out.artefact[i] = rng.uniform() < 0.5 ? 1 : 0;
   return out;
 }

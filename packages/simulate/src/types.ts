@@ -22,29 +22,37 @@ export interface SimulateOptions {
   unitClasses?: readonly CellClass[];
   /** Peak ΔF/F of a full-size response (RPE = 1, unit vigour), fraction. @defaultValue 0.03 */
   responseDff?: number;
-  /** Standard deviation of white shot-like measurement noise, as a fraction of F at the raw rate. @defaultValue 0.01 */
+  /** Standard deviation of white shot-like measurement noise, as a fraction of F at the raw rate. @defaultValue 0.003 */
   shotNoise?: number;
   /** Standard deviation of slow biological background ΔF/F (AR(1), 1 s time constant). @defaultValue 0.003 */
   backgroundDff?: number;
   /** Fractional size (mean) of shared motion artefacts. @defaultValue 0.05 */
   artefactSize?: number;
+  /** Rate of motion artefacts at random times, independent of behaviour, per second. @defaultValue 0.03 */
+  artefactRate?: number;
+  /**
+   * Fraction of movement bouts that also shake the fiber (an artefact during the bout). Artefacts
+   * tied to movement are the realistic hard case: a control fit then absorbs part of any real
+   * movement response. @defaultValue 0
+   */
+  artefactAtMovement?: number;
   /** Block length range, trials [min, max] (uniform integer). @defaultValue [30, 60] */
   blockTrials?: readonly [number, number];
   /** Reward probabilities of the better and worse port. @defaultValue [0.8, 0.2] */
   rewardProbs?: readonly [number, number];
-  /** Rate of unannounced bonus rewards during the inter-trial interval, per second. @defaultValue 0.01 */
+  /** Rate of unannounced bonus rewards during the inter-trial interval, per second. @defaultValue 0.03 */
   bonusRate?: number;
   /** Rate of spontaneous movement bouts, per second (in addition to one at each choice). @defaultValue 0.08 */
   movementRate?: number;
   /** Accelerometer sample rate, Hz. @defaultValue 100 */
   accelRate?: number;
-  /** Agent parameters (Q-learning + choice kernel): learning rate α. @defaultValue 0.4 */
+  /** Agent parameters (Q-learning + choice kernel): learning rate α. @defaultValue 0.3 */
   alpha?: number;
-  /** Agent inverse temperature on Q, β. @defaultValue 5 */
+  /** Agent inverse temperature on Q, β. @defaultValue 2.5 */
   beta?: number;
   /** Agent choice-kernel learning rate α_C. @defaultValue 0.3 */
   alphaC?: number;
-  /** Agent choice-kernel weight β_C. @defaultValue 1.5 */
+  /** Agent choice-kernel weight β_C. @defaultValue 2.5 */
   betaC?: number;
   /** Baseline firing rate range of units, Hz. @defaultValue [4, 12] */
   unitBaseRate?: readonly [number, number];
