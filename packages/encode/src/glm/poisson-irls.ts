@@ -1,0 +1,297 @@
+/**
+ * Internal engine: ridge-penalised Poisson regression with log link by IRLS (Newton–Raphson on
+ * the canonical link) on a sparse row matrix with an implicit unpenalised intercept
+ * (INFERENCE.md §4.5).
+ *
+ *   objective(β) = Σ_t (μ_t − y_t·log μ_t) + ½ Σ_j pen_j·β_j²,   log μ_t = β₀ + x_tᵀβ + offset_t
+ *
+ * Each iteration solves (XᵀWX + P)·Δ = Xᵀ(y − μ) − P·β with W = diag(μ) by Cholesky and halves
+ * the step while the objective rises. |η| is capped at 30. Convergence: relative change of the
+ * penalised deviance (2·objective + const) below `tol`, as R's glm.fit. A fixed-Hessian variant
+ * (modified Newton) reuses a supplied Hessian and only recomputes gradients; it falls back to
+ * full IRLS when it stalls.
+ */
+import { cholesky, choleskyInverse, choleskySolveInPlace } from '../linalg/cholesky.js';
+import type { CholeskyFactor } from '../linalg/cholesky.js';
+
+/** Sparse design rows with responses and offsets (log exposure), trusted by the engine. */
+export interface PoissonProblem {
+  readonly n: number;
+  readonly p: number;
+  readonly rowPtr: Int32Array;
+  readonly colIdx: Int32Array;
+  readonly values: Float64Array;
+  readonly y: Float64Array;
+  /** Per-row offset, or one value for all rows. */
+  readonly offset: Float64Array | number;
+  /** Rows excluded everywhere (0) — e.g. masked rows — or null. */
+  readonly rowValid: Uint8Array | null;
+}
+
+/** Row ranges [r0, r1) flattened: ranges[2i], ranges[2i+1]. */
+export type RowRanges = Int32Array;
+
+export interface IrlsResult {
+  /** Coefficients: intercept first, then p slopes. */
+  readonly beta: Float64Array;
+  /** Poisson deviance (unpenalised) on the fitted rows. */
+  readonly deviance: number;
+  readonly objective: number;
+  readonly iterations: number;
+  readonly converged: boolean;
+  /** Penalised Hessian at the solution ((p+1)², row-major), for Wald intervals and warm starts. */
+  readonly hessian: Float64Array;
+  readonly nRows: number;
+  readonly ySum: number;
+}
+
+const ETA_CAP = 30;
+
+
+/**
+ * One pass over the rows in ranges: η_t, μ_t = exp(η_t) (arrays indexed by row), the objective
+ * Σ(μ − y·η) + ½Σpen·β², and, when g is given, the gradient of −objective (length p+1).
+ * Rows without regressors share one exp.
+ */
+function evaluate(prob: PoissonProblem, ranges: RowRanges, beta: Float64Array, pen: Float64Array, eta: Float64Array, mu: Float64Array, g: Float64Array | null): number {
+  const { rowPtr, colIdx, values, y, rowValid } = prob;
+  const b0 = beta[0]!;
+  const scalar = typeof prob.offset === 'number';
+  const off0 = scalar ? (prob.offset as number) : 0;
+  const offs = scalar ? null : (prob.offset as Float64Array);
+  let e0 = b0 + off0;
+  e0 = e0 > ETA_CAP ? ETA_CAP : e0 < -ETA_CAP ? -ETA_CAP : e0;
+  const mu0 = Math.exp(e0);
+  let obj = 0;
+  let g0 = 0;
+  if (g) g.fill(0);
+  for (let q = 0; q < ranges.length; q += 2) {
+    for (let t = ranges[q]!; t < ranges[q + 1]!; t++) {
+      const k0 = rowPtr[t]!;
+      const k1 = rowPtr[t + 1]!;
+      let e: number;
+      let m: number;
+      if (k0 === k1 && scalar) {
+        e = e0;
+        m = mu0;
+      } else {
+        e = b0 + (scalar ? off0 : offs![t]!);
+        for (let k = k0; k < k1; k++) e += values[k]! * beta[colIdx[k]! + 1]!;
+        e = e > ETA_CAP ? ETA_CAP : e < -ETA_CAP ? -ETA_CAP : e;
+        m = Math.exp(e);
+      }
+      eta[t] = e;
+      mu[t] = m;
+      if (rowValid && !rowValid[t]) continue;
+      const yt = y[t]!;
+      obj += m - yt * e;
+      if (g) {
+        const r = yt - m;
+        g0 += r;
+        for (let k = k0; k < k1; k++) {
+          const j = colIdx[k]! + 1;
+          g[j] = g[j]! + r * values[k]!;
+        }
+      }
+    }
+  }
+  for (let j = 0; j < pen.length; j++) obj += 0.5 * pen[j]! * beta[j + 1]! * beta[j + 1]!;
+  if (g) {
+    g[0] = g0;
+    for (let j = 0; j < pen.length; j++) g[j + 1] = g[j + 1]! - pen[j]! * beta[j + 1]!;
+  }
+  return obj;
+}
+
+/** Weighted Gram XᵀWX (with intercept) over ranges into h ((p+1)², full), without penalty. */
+export function weightedGram(prob: PoissonProblem, ranges: RowRanges, muArr: Float64Array, h: Float64Array, stride = 1): void {
+  const { rowPtr, colIdx, values, rowValid } = prob;
+  const q1 = prob.p + 1;
+  for (let q = 0; q < ranges.length; q += 2) {
+    for (let t = ranges[q]! + ((stride - 1) >> 1); t < ranges[q + 1]!; t += stride) {
+      if (rowValid && !rowValid[t]) continue;
+      const mu = stride * muArr[t]!;
+      h[0] = h[0]! + mu;
+      const k1 = rowPtr[t + 1]!;
+      for (let a = rowPtr[t]!; a < k1; a++) {
+        const ja = colIdx[a]! + 1;
+        const wa = mu * values[a]!;
+        h[ja] = h[ja]! + wa; // row 0
+        const base = ja * q1;
+        for (let b = a; b < k1; b++) {
+          const idx = base + colIdx[b]! + 1;
+          h[idx] = h[idx]! + wa * values[b]!;
+        }
+      }
+    }
+  }
+}
+
+/** Symmetrise (upper → lower, and column 0 from row 0) and add the penalty diagonal. */
+export function finishHessian(h: Float64Array, q1: number, pen: Float64Array): void {
+  for (let i = 0; i < q1; i++) for (let j = i + 1; j < q1; j++) h[j * q1 + i] = h[i * q1 + j]!;
+  for (let j = 0; j < pen.length; j++) h[(j + 1) * q1 + j + 1] = h[(j + 1) * q1 + j + 1]! + pen[j]!;
+}
+
+/** Poisson deviance 2Σ[y log(y/μ) − (y − μ)] over ranges (0·log 0 = 0). */
+export function deviance(prob: PoissonProblem, ranges: RowRanges, eta: Float64Array): number {
+  const { y, rowValid } = prob;
+  let d = 0;
+  for (let q = 0; q < ranges.length; q += 2) {
+    for (let t = ranges[q]!; t < ranges[q + 1]!; t++) {
+      if (rowValid && !rowValid[t]) continue;
+      const yt = y[t]!;
+      const mu = Math.exp(eta[t]!);
+      d += (yt > 0 ? yt * (Math.log(yt) - eta[t]!) : 0) - (yt - mu);
+    }
+  }
+  return 2 * d;
+}
+
+export interface IrlsOptions {
+  readonly tol: number;
+  readonly maxIterations: number;
+  /** Use this penalised Hessian throughout (modified Newton) before falling back to IRLS. */
+  readonly fixedHessian?: Float64Array;
+  readonly start?: Float64Array;
+  /** Compute the penalised Hessian at the solution (one extra pass). @defaultValue true */
+  readonly wantHessian?: boolean;
+  /** Exact-Hessian iterations before switching to the first exact Hessian kept fixed. @defaultValue Infinity */
+  readonly exactIterations?: number;
+  /** Rows used for the working Hessian: every stride-th (weights × stride); 1 = all. @defaultValue 1 */
+  readonly hessianStride?: number;
+}
+
+/** Fit on the rows in `ranges`; `pen` (length p) is the penalty diagonal of the slopes. */
+export function irls(prob: PoissonProblem, ranges: RowRanges, pen: Float64Array, opts: IrlsOptions, eta: Float64Array, mu: Float64Array): IrlsResult {
+  const p = prob.p;
+  const q1 = p + 1;
+  const { y, rowValid } = prob;
+  let ySum = 0;
+  let expoSum = 0;
+  let nRows = 0;
+  let devConst = 0; // 2Σ(y log y − y): penalised deviance = 2·objective + devConst
+  for (let q = 0; q < ranges.length; q += 2) {
+    for (let t = ranges[q]!; t < ranges[q + 1]!; t++) {
+      if (rowValid && !rowValid[t]) continue;
+      const yt = y[t]!;
+      if (yt > 0) devConst += 2 * (yt * Math.log(yt) - yt);
+      ySum += yt;
+      if (typeof prob.offset !== 'number') expoSum += Math.exp(prob.offset[t]!);
+      nRows++;
+    }
+  }
+  if (typeof prob.offset === 'number') expoSum = nRows * Math.exp(prob.offset);
+  let beta: Float64Array;
+  if (opts.start) beta = Float64Array.from(opts.start);
+  else {
+    beta = new Float64Array(q1);
+    beta[0] = Math.log(Math.max(ySum, 1e-10) / expoSum);
+  }
+  const g = new Float64Array(q1);
+  const gTrial = new Float64Array(q1);
+  let obj = evaluate(prob, ranges, beta, pen, eta, mu, g);
+  const h = new Float64Array(q1 * q1);
+  let fixed: CholeskyFactor | null = null;
+  if (opts.fixedHessian) {
+    const f = cholesky(opts.fixedHessian, q1);
+    fixed = typeof f === 'number' ? null : f;
+  }
+  let it = 0;
+  let converged = false;
+  let fixedFails = 0;
+  let stride = opts.hessianStride ?? 1;
+  const trial = new Float64Array(q1);
+  while (it < opts.maxIterations) {
+    it++;
+    let fac: CholeskyFactor | null = fixed;
+    if (!fac) {
+      h.fill(0);
+      weightedGram(prob, ranges, mu, h, stride);
+      finishHessian(h, q1, pen);
+      const f = cholesky(h, q1);
+      if (typeof f === 'number') {
+        // Singular Hessian (e.g. a column never active on these rows): add a tiny ridge.
+        for (let j = 0; j < q1; j++) h[j * q1 + j] = h[j * q1 + j]! * (1 + 1e-10) + 1e-10;
+        const f2 = cholesky(h, q1);
+        if (typeof f2 === 'number') break;
+        fac = f2;
+      } else fac = f;
+      if (it >= (opts.exactIterations ?? Infinity)) fixed = fac;
+    }
+    const step = choleskySolveInPlace(fac, Float64Array.from(g));
+    let scale = 1;
+    let objNew = Infinity;
+    for (let half = 0; half < 30; half++) {
+      for (let j = 0; j < q1; j++) trial[j] = beta[j]! + scale * step[j]!;
+      objNew = evaluate(prob, ranges, trial, pen, eta, mu, gTrial);
+      if (objNew <= obj + 1e-12 * Math.abs(obj)) break;
+      scale /= 2;
+    }
+    if (!(objNew <= obj + 1e-12 * Math.abs(obj))) {
+      evaluate(prob, ranges, beta, pen, eta, mu, g);
+      if (fixed) {
+        fixed = null; // stalled: switch to full IRLS
+        continue;
+      }
+      converged = true; // no descent possible: at the optimum to rounding
+      break;
+    }
+    beta = Float64Array.from(trial);
+    g.set(gTrial);
+    const change = Math.abs(2 * (objNew - obj)) / (Math.abs(2 * objNew + devConst) + 0.1);
+    obj = objNew;
+    if (fixed && scale < 1) fixedFails++;
+    if (fixed && fixedFails > 2) fixed = null;
+    if (scale < 0.125) stride = 1; // a poor working Hessian: use every row from now on
+    // With an inexact working Hessian (kept fixed, or from every stride-th row) convergence is
+    // linear, so a small change does not yet mean a small error: demand a change 100 times smaller.
+    const inexact = fixed !== null || stride > 1;
+    if (change < (inexact ? opts.tol * 1e-2 : opts.tol)) {
+      converged = true;
+      break;
+    }
+  }
+  // Hessian at the solution.
+  let hess = new Float64Array(0);
+  if (opts.wantHessian ?? true) {
+    h.fill(0);
+    weightedGram(prob, ranges, mu, h);
+    finishHessian(h, q1, pen);
+    hess = Float64Array.from(h);
+  }
+  return { beta, deviance: deviance(prob, ranges, eta), objective: obj, iterations: it, converged, hessian: hess, nRows, ySum };
+}
+
+/** Inverse of a penalised Hessian (Wald covariance), or null when not positive definite. */
+export function hessianInverse(h: Float64Array, q1: number): Float64Array | null {
+  const f = cholesky(h, q1);
+  return typeof f === 'number' ? null : choleskyInverse(f);
+}
+
+/** η and μ over ranges for coefficients beta (exported for test-fold deviance). */
+export function predictEta(prob: PoissonProblem, ranges: RowRanges, beta: Float64Array, eta: Float64Array, mu: Float64Array): void {
+  evaluate(prob, ranges, beta, new Float64Array(prob.p), eta, mu, null);
+}
+
+/** Unpenalised score Σ(y − μ)·[1, x] over ranges from cached μ, with Σy and the row count. */
+export function scoreOn(prob: PoissonProblem, ranges: RowRanges, mu: Float64Array): { g: Float64Array; ySum: number; nRows: number } {
+  const { rowPtr, colIdx, values, y, rowValid } = prob;
+  const g = new Float64Array(prob.p + 1);
+  let ySum = 0;
+  let nRows = 0;
+  for (let q = 0; q < ranges.length; q += 2) {
+    for (let t = ranges[q]!; t < ranges[q + 1]!; t++) {
+      if (rowValid && !rowValid[t]) continue;
+      const r = y[t]! - mu[t]!;
+      ySum += y[t]!;
+      nRows++;
+      g[0] = g[0]! + r;
+      for (let k = rowPtr[t]!; k < rowPtr[t + 1]!; k++) {
+        const j = colIdx[k]! + 1;
+        g[j] = g[j]! + r * values[k]!;
+      }
+    }
+  }
+  return { g, ySum, nRows };
+}
