@@ -1,0 +1,33 @@
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { main as correct } from '../examples/correct-photometry.js';
+import { main as peth } from '../examples/peth-with-band.js';
+import { main as learning } from '../examples/fit-learning-model.js';
+import { main as classify } from '../examples/classify-units.js';
+
+// Every example runs here on small simulated data, so none of them rots.
+const out = mkdtempSync(join(tmpdir(), 'tuningfork-examples-'));
+
+describe('examples', () => {
+  it('correct-photometry writes the corrected trace', async () => {
+    const r = await correct(out, 300);
+    expect(r.slope).toBeGreaterThan(0);
+    expect(readFileSync(r.file, 'utf8').split('\n')[0]).toBe('time,dff,z');
+  });
+  it('peth-with-band draws the outcome PETH with its band', () => {
+    const r = peth(out, 600);
+    expect(r.trials).toBeGreaterThan(20);
+    expect(readFileSync(r.file, 'utf8')).toMatch(/^<svg/);
+  });
+  it('fit-learning-model exports per-trial RPE and APE', async () => {
+    const r = await learning(out, 900);
+    expect(Object.keys(r.params)).toEqual(['alpha', 'beta', 'alphaC', 'betaC']);
+    expect(readFileSync(r.file, 'utf8').split('\n')[0]).toBe('trial,choice,reward,rpe,ape,q_chosen,p_choice');
+  });
+  it('classify-units returns one class per unit', async () => {
+    const rows = await classify(600, 3);
+    expect(rows.map((r) => r.cell)).toEqual(['unit001', 'unit002', 'unit003']);
+  });
+});
