@@ -62,7 +62,7 @@ function recoveryTable(res: ParameterRecovery): string {
 const settings: { label: string; ranges: Partial<Record<ChoiceParamName, readonly [number, number]>> }[] = [
   { label: 'library default ranges (RECOVERY_RANGES)', ranges: {} },
   { label: 'moderate β (β ∈ [0.5, 6], β_C ∈ [0, 3])', ranges: { beta: [0.5, 6], betaC: [0, 3] } },
-  { label: 'around the simulator defaults (α 0.4, β 5, α_C 0.3, β_C 1.5; ±50 %)', ranges: { alpha: [0.2, 0.6], beta: [2.5, 7.5], alphaC: [0.15, 0.45], betaC: [0.75, 2.25] } },
+  { label: 'around the simulator defaults (α 0.3, β 2.5, α_C 0.3, β_C 2.5; ±50 %)', ranges: { alpha: [0.15, 0.45], beta: [1.25, 3.75], alphaC: [0.15, 0.45], betaC: [1.25, 3.75] } },
 ];
 
 console.log(`# Recovery study — ${nAgents} agents × ${nTrials} trials, ${starts} starts per fit, ${workers} worker thread(s), seed ${seed}\n`);
