@@ -28,7 +28,8 @@ const MAP: [string, string[], string[]][] = [
  * percentile bands; ours resample the 10 Hz-low-passed trace to 50 Hz (Nyquist 25 Hz, our
  * default) where the peer keeps 1 kHz (the native-rate bootstrap alone is compared in the stats
  * bench). Our encoding step runs 1000 circular shifts (the peer runs 200) and our conditioning
- * also fits bleaching. QC and the HTML report (no peer counterpart) are off. Prints per-step and
+ * also fits bleaching. QC and the HTML report (no peer counterpart) are off; per-site intermediates
+ * are kept as a batch run keeps them (intermediates: 'outputs'). Prints per-step and
  * total ratios (tuningfork / peer) and both peak memories.
  */
 async function sideBySide(): Promise<BenchRow[]> {
@@ -54,7 +55,7 @@ async function sideBySide(): Promise<BenchRow[]> {
       ],
     }));
     const options = {
-      seed: 0, qc: false, report: false,
+      seed: 0, qc: false, report: false, intermediates: 'outputs',
       periEvent: { responses: { reward: { reward: ['reward'] }, movement: { onset: ['move_onset'] } }, unitEvents: [], resamples: 2000, baselineSec: null },
     };
     const ours = spawnSync(process.execPath, ['--max-old-space-size=16000', '--import', 'tsx', join(here, '..', 'pipeline-child.ts'), join(dir, 'session.json'), JSON.stringify(options)], { encoding: 'utf8', maxBuffer: 1 << 26 });

@@ -1,8 +1,8 @@
 import {
-  TuningforkError, checkBoolean, checkInteger, checkPositive, eventTimes, eventValues, hashInput, makeEventTable,
+  TuningforkError, checkBoolean, checkInteger, checkOneOf, checkPositive, eventTimes, eventValues, hashInput, makeEventTable,
   makeProvenance, resolveOptions, rng,
 } from '@tuningfork/core';
-import type { EventTable, PhotometrySite, ResultWarning, Session, TrialTable } from '@tuningfork/core';
+import type { EventTable, PhotometrySite, ResultWarning, Session, TrialTable, UniformSignal } from '@tuningfork/core';
 import { binSpikes, conditionSite, siteQuality } from '@tuningfork/signal';
 import type { ConditionSiteOptions, ConditionedSite, SiteQuality } from '@tuningfork/signal';
 import { movementOnsets, periEventCounts, periEventMatrix } from '@tuningfork/align';
@@ -89,6 +89,14 @@ export interface AnalyzeSessionOptions {
   traceRateHz?: number;
   /** Build the HTML report into the outputs. @defaultValue true */
   report?: boolean;
+  /**
+   * Which per-site intermediates to keep: 'all', or 'outputs' — only what the tables and report use
+   * (filtered sensor, fitted control, bleaching baseline of the sensor, ΔF/F, z). With 'outputs' the
+   * filtered control and the bleaching-detrended copies are empty signals (length 0), which saves
+   * about 4 full-rate arrays per site (≈ 115 MB per site-hour at 1 kHz); batch runs use it.
+   * @defaultValue 'all'
+   */
+  intermediates?: 'all' | 'outputs';
 }
 
 /** One photometry site after conditioning. */
@@ -147,6 +155,7 @@ const DEFAULTS = Object.freeze({
   encode: {} as EncodeStepOptions | false,
   traceRateHz: 50,
   report: true,
+  intermediates: 'all' as 'all' | 'outputs',
 });
 
 const PERI_DEFAULTS: Readonly<Required<PeriEventStepOptions>> = Object.freeze({
@@ -198,6 +207,7 @@ export async function analyzeSession(session: Session, options: AnalyzeSessionOp
   const wantQc = checkBoolean(fn, 'qc', o.qc);
   const wantReport = checkBoolean(fn, 'report', o.report);
   const traceRate = checkPositive(fn, 'traceRateHz', o.traceRateHz);
+  const compact = checkOneOf(fn, 'intermediates', o.intermediates, ['all', 'outputs'] as const) === 'outputs';
   const peri = resolveOptions(`${fn} periEvent`, PERI_DEFAULTS, o.periEvent) as Required<PeriEventStepOptions>;
   const enc = o.encode === false ? null : (resolveOptions(`${fn} encode`, ENCODE_DEFAULTS, o.encode) as Required<EncodeStepOptions>);
   checkSession(fn, session);
@@ -219,7 +229,8 @@ export async function analyzeSession(session: Session, options: AnalyzeSessionOp
   // 1. Photometry conditioning (and QC).
   const sites = await timed('condition', () => session.photometry.map((site, i) => {
     progress('condition', i / Math.max(1, session.photometry.length));
-    return { name: site.name, conditioned: conditionSite(site, o.condition), quality: null as SiteQuality | null };
+    const c = conditionSite(site, o.condition);
+    return { name: site.name, conditioned: compact ? slim(c) : c, quality: null as SiteQuality | null };
   }));
   if (wantQc) {
     const q = await timed('qc', () => session.photometry.map((site) => siteQuality(site)));
@@ -254,6 +265,24 @@ export async function analyzeSession(session: Session, options: AnalyzeSessionOp
   const partial = { sessionId: session.id, seed, sites, trials, events, movement, learning, responses, encoding, timings, warnings };
   const outputs = await timed('outputs', () => buildOutputs(session, partial, { traceRate, report: wantReport, provenance, assumptions: BAND_ASSUMPTIONS }));
   return { ...partial, outputs };
+}
+
+/** A zero-length signal on the same clock (stands for a dropped intermediate). */
+function emptyLike(s: UniformSignal): UniformSignal {
+  return { values: new Float64Array(0), sampleRate: s.sampleRate, t0: s.t0 };
+}
+
+/** Drop the intermediates no output uses (see `intermediates: 'outputs'`). */
+function slim(c: ConditionedSite): ConditionedSite {
+  const b = c.bleaching;
+  return {
+    ...c,
+    filtered: { signal: c.filtered.signal, control: emptyLike(c.filtered.control) },
+    bleaching: b ? {
+      signal: { ...b.signal, detrended: emptyLike(b.signal.detrended) },
+      control: b.control ? { ...b.control, baseline: emptyLike(b.control.baseline), detrended: emptyLike(b.control.detrended) } : null,
+    } : null,
+  };
 }
 
 function checkSession(fn: string, s: Session): void {
