@@ -13,6 +13,8 @@
  */
 import { cholesky, choleskyInverse, choleskySolveInPlace } from '../linalg/cholesky.js';
 import type { CholeskyFactor } from '../linalg/cholesky.js';
+import { convPredict, convScore } from './conv-structure.js';
+import type { ConvStructure } from './conv-structure.js';
 
 /** Sparse design rows with responses and offsets (log exposure), trusted by the engine. */
 export interface PoissonProblem {
@@ -26,6 +28,11 @@ export interface PoissonProblem {
   readonly offset: Float64Array | number;
   /** Rows excluded everywhere (0) — e.g. masked rows — or null. */
   readonly rowValid: Uint8Array | null;
+  /**
+   * The same matrix as event-term convolutions plus a residual CSR (conv-structure.ts), used for
+   * Xβ and Xᵀr when present (fewer operations; equal to rounding). Weighted Grams always use the CSR.
+   */
+  readonly structure?: ConvStructure | null;
 }
 
 /** Row ranges [r0, r1) flattened: ranges[2i], ranges[2i+1]. */
@@ -54,6 +61,7 @@ const ETA_CAP = 30;
  * Rows without regressors share one exp.
  */
 function evaluate(prob: PoissonProblem, ranges: RowRanges, beta: Float64Array, pen: Float64Array, eta: Float64Array, mu: Float64Array, g: Float64Array | null): number {
+  if (prob.structure) return evaluateStructured(prob, prob.structure, ranges, beta, pen, eta, mu, g);
   const { rowPtr, colIdx, values, y, rowValid } = prob;
   const b0 = beta[0]!;
   const scalar = typeof prob.offset === 'number';
@@ -97,6 +105,54 @@ function evaluate(prob: PoissonProblem, ranges: RowRanges, beta: Float64Array, p
   }
   for (let j = 0; j < pen.length; j++) obj += 0.5 * pen[j]! * beta[j + 1]! * beta[j + 1]!;
   if (g) {
+    g[0] = g0;
+    for (let j = 0; j < pen.length; j++) g[j + 1] = g[j + 1]! - pen[j]! * beta[j + 1]!;
+  }
+  return obj;
+}
+
+/** {@link evaluate} with Xβ and Xᵀr through the convolution structure. */
+function evaluateStructured(prob: PoissonProblem, s: ConvStructure, ranges: RowRanges, beta: Float64Array, pen: Float64Array, eta: Float64Array, mu: Float64Array, g: Float64Array | null): number {
+  const { y, rowValid } = prob;
+  const { rowPtr, colIdx, values, xb, r } = s;
+  const b0 = beta[0]!;
+  const scalar = typeof prob.offset === 'number';
+  const off0 = scalar ? (prob.offset as number) : 0;
+  const offs = scalar ? null : (prob.offset as Float64Array);
+  convPredict(s, beta);
+  let obj = 0;
+  let g0 = 0;
+  if (g) {
+    g.fill(0);
+    r.fill(0);
+  }
+  for (let q = 0; q < ranges.length; q += 2) {
+    for (let t = ranges[q]!; t < ranges[q + 1]!; t++) {
+      const k0 = rowPtr[t]!;
+      const k1 = rowPtr[t + 1]!;
+      let e = b0 + (scalar ? off0 : offs![t]!) + xb[t]!;
+      for (let k = k0; k < k1; k++) e += values[k]! * beta[colIdx[k]! + 1]!;
+      e = e > ETA_CAP ? ETA_CAP : e < -ETA_CAP ? -ETA_CAP : e;
+      const m = Math.exp(e);
+      eta[t] = e;
+      mu[t] = m;
+      if (rowValid && !rowValid[t]) continue;
+      const yt = y[t]!;
+      obj += m - yt * e;
+      if (g) {
+        const rt = yt - m;
+        r[t] = rt;
+        g0 += rt;
+        for (let k = k0; k < k1; k++) {
+          const j = colIdx[k]! + 1;
+          g[j] = g[j]! + rt * values[k]!;
+        }
+      }
+    }
+  }
+  for (let j = 0; j < pen.length; j++) obj += 0.5 * pen[j]! * beta[j + 1]! * beta[j + 1]!;
+  if (g) {
+    convScore(s, g);
     g[0] = g0;
     for (let j = 0; j < pen.length; j++) g[j + 1] = g[j + 1]! - pen[j]! * beta[j + 1]!;
   }
@@ -276,7 +332,10 @@ export function predictEta(prob: PoissonProblem, ranges: RowRanges, beta: Float6
 
 /** Unpenalised score Σ(y − μ)·[1, x] over ranges from cached μ, with Σy and the row count. */
 export function scoreOn(prob: PoissonProblem, ranges: RowRanges, mu: Float64Array): { g: Float64Array; ySum: number; nRows: number } {
-  const { rowPtr, colIdx, values, y, rowValid } = prob;
+  const s = prob.structure;
+  const { y, rowValid } = prob;
+  const { rowPtr, colIdx, values } = s ?? prob;
+  if (s) s.r.fill(0);
   const g = new Float64Array(prob.p + 1);
   let ySum = 0;
   let nRows = 0;
@@ -284,6 +343,7 @@ export function scoreOn(prob: PoissonProblem, ranges: RowRanges, mu: Float64Arra
     for (let t = ranges[q]!; t < ranges[q + 1]!; t++) {
       if (rowValid && !rowValid[t]) continue;
       const r = y[t]! - mu[t]!;
+      if (s) s.r[t] = r;
       ySum += y[t]!;
       nRows++;
       g[0] = g[0]! + r;
@@ -293,5 +353,6 @@ export function scoreOn(prob: PoissonProblem, ranges: RowRanges, mu: Float64Arra
       }
     }
   }
+  if (s) convScore(s, g);
   return { g, ySum, nRows };
 }

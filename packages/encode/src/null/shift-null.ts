@@ -7,6 +7,25 @@ import { RidgeCVPlan } from '../ridge/ridge-plan.js';
 import { designSums } from '../internal/segment-sums.js';
 import { FixedPenaltyScorer } from './fixed-penalty-scorer.js';
 import { buildShiftPlan, forEachShift } from './shifted-sums.js';
+import type { ShiftPlan } from './shifted-sums.js';
+
+/**
+ * The last shift plan built (design-level source spectra, ≈ 100 MB on a 60-minute 50 Hz grid),
+ * held weakly: a later call on the same design, segments and settings (another cell, another
+ * seed) reuses it while it is still alive, and the garbage collector may reclaim it at any time.
+ */
+let lastPlan: { design: WeakRef<EncodingDesign>; key: string; plan: WeakRef<ShiftPlan> } | null = null;
+
+function cachedShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts: number, route: 'auto' | 'direct' | 'fft', nCells: number): ShiftPlan {
+  const key = `${Array.from(cuts).join(',')}|${nShifts}|${route}|${nCells}`;
+  if (lastPlan && lastPlan.key === key && lastPlan.design.deref() === design) {
+    const plan = lastPlan.plan.deref();
+    if (plan) return plan;
+  }
+  const plan = buildShiftPlan(design, cuts, nShifts, route, nCells);
+  lastPlan = { design: new WeakRef(design), key, plan: new WeakRef(plan) };
+  return plan;
+}
 
 /** Options of {@link shiftNull}. */
 export interface ShiftNullOptions {
@@ -142,7 +161,7 @@ export function shiftNull(design: EncodingDesign, fit: RidgeCVResult, options: S
     const sums = designSums(design, prep.layout.cuts, design.rowValid);
     plan = new RidgeCVPlan(sums, prep.layout.cuts, prep.layout.testStart, prep.layout.testEnd, prep.layout.gapBins, prep.models);
   }
-  const sp = buildShiftPlan(design, prep.layout.cuts, all.length, route, fit.cells.length);
+  const sp = cachedShiftPlan(design, prep.layout.cuts, all.length, route, fit.cells.length);
   const cells: ShiftNullCell[] = [];
   fit.cells.forEach((cf, ci) => {
     const name = cf.name;
