@@ -9,7 +9,9 @@ import {
   accelerationFrom, accumulateJackknife, FLAG_DEGENERATE, FLAG_NO_REPLICATES, FLAG_UNSTABLE_LEVEL, FLAG_ZERO_ACCELERATION,
   intervalInPlace, makeIntervalScratch,
 } from './interval-core.js';
-import { BLOCK, makeTable, weightedBlock } from './count-plan.js';
+import { BLOCK } from './count-plan.js';
+import { makeBlockSource } from './block-source.js';
+import type { KernelChoice, ProductSpec } from './block-source.js';
 import type { CountPlan } from './count-plan.js';
 import { describeColumn, firstIndices, warn } from './validate.js';
 
@@ -142,6 +144,10 @@ export interface EngineOptions {
   readonly nan: NanMode;
   /** Also return the share of finite replicates > 0 per column. */
   readonly shareAboveZero?: boolean;
+  /** Product kernel: 'auto' (by size), or forced 'js' / 'simd' (tests). @defaultValue 'auto' */
+  readonly kernel?: KernelChoice;
+  /** Threads computing the product (calling thread included). @defaultValue 1 */
+  readonly threads?: number;
 }
 
 export interface EngineResult {
@@ -184,114 +190,123 @@ export function runTimecourse(conds: readonly Prepared[], o: EngineOptions): Eng
   const blocks = conds.map((c) => ({
     out: Array.from({ length: c.z.length }, () => new Float64Array(BLOCK * R)),
     ind: c.ind ? new Float64Array(BLOCK * R) : null,
-    table: makeTable(c.plan.groups),
     vals: new Float64Array(R),
     jack: new Float64Array(c.n),
   }));
+  const products: ProductSpec[] = [];
+  conds.forEach((c, ci) => {
+    const bl = blocks[ci]!;
+    c.z.forEach((z, k) => products.push({ plan: c.plan, y: z, out: bl.out[k]! }));
+    if (c.ind) products.push({ plan: c.plan, y: c.ind, out: bl.ind! });
+  });
+  const source = makeBlockSource(o.fn, products, T, o.kernel ?? 'auto', o.threads ?? 1);
   const reps = new Float64Array(R);
   const mom = new Float64Array(Math.max(order, 1));
   const acc = new Float64Array(2);
   const scratch = makeIntervalScratch();
 
-  for (let c0 = 0; c0 < T; c0 += BLOCK) {
-    const width = Math.min(BLOCK, T - c0);
-    for (let ci = 0; ci < conds.length; ci++) {
-      const c = conds[ci]!;
-      const bl = blocks[ci]!;
-      for (let k = 0; k < c.z.length; k++) weightedBlock(c.plan, c.z[k]!, T, c0, width, bl.table, bl.out[k]!);
-      if (c.ind) weightedBlock(c.plan, c.ind, T, c0, width, bl.table, bl.ind!);
-    }
-    for (let jj = 0; jj < width; jj++) {
-      const j = c0 + jj;
-      // Point estimate and usability of the column.
-      let est = 0;
-      let usable = true;
-      for (let ci = 0; ci < conds.length; ci++) {
-        const c = conds[ci]!;
-        if (c.bad[j]) { anyBad[j] = 1; usable = false; continue; }
-        const N = c.count[j]!;
-        if (N < 2) { tooFew[j] = 1; usable = false; continue; }
-        for (let k = 0; k < order; k++) mom[k] = c.sums[spec.centred ? k : 0]![j]! / N;
-        const th = !spec.centred && c.constant[j] === c.constant[j] ? c.constant[j]! : spec.evaluate(mom, c.center[j]!, N);
-        est += ci === 0 ? th : -th;
-      }
-      if (!usable) { estimate[j] = NaN; continue; }
-      estimate[j] = est;
-      // Replicates. Fast path: one condition, plain mean, no NaN bookkeeping, no kept matrix.
-      let nFinite = 0;
-      const c0nd = conds[0]!;
-      if (conds.length === 1 && !spec.centred && !blocks[0]!.ind && !keep && c0nd.constant[j] !== c0nd.constant[j]) {
-        const sums = blocks[0]!.out[0]!;
-        const total = c0nd.plan.total;
-        const base = jj * R;
-        let acc2 = 0;
-        for (let b = 0; b < R; b++) {
-          const v = sums[base + b]! / total[b]!;
-          reps[b] = v;
-          acc2 += v;
-        }
-        if (acc2 - acc2 === 0) nFinite = R;
-      }
-      if (nFinite === 0) {
+  try {
+    for (let c0 = 0; c0 < T; c0 += BLOCK) {
+      const width = Math.min(BLOCK, T - c0);
+      source.fill(c0, width);
+      for (let jj = 0; jj < width; jj++) {
+        const j = c0 + jj;
+        // Point estimate and usability of the column.
+        let est = 0;
+        let usable = true;
         for (let ci = 0; ci < conds.length; ci++) {
           const c = conds[ci]!;
-          const bl = blocks[ci]!;
-          const total = c.plan.total;
+          if (c.bad[j]) { anyBad[j] = 1; usable = false; continue; }
+          const N = c.count[j]!;
+          if (N < 2) { tooFew[j] = 1; usable = false; continue; }
+          for (let k = 0; k < order; k++) mom[k] = c.sums[spec.centred ? k : 0]![j]! / N;
+          const th = !spec.centred && c.constant[j] === c.constant[j] ? c.constant[j]! : spec.evaluate(mom, c.center[j]!, N);
+          est += ci === 0 ? th : -th;
+        }
+        if (!usable) { estimate[j] = NaN; continue; }
+        estimate[j] = est;
+        // Replicates. Fast path: one condition, plain mean, no NaN bookkeeping, no kept matrix.
+        let nFinite = 0;
+        let repSum = NaN; // Σ reps in order, when the fast path already formed it
+        const c0nd = conds[0]!;
+        if (conds.length === 1 && !spec.centred && !blocks[0]!.ind && !keep && c0nd.constant[j] !== c0nd.constant[j]) {
+          const sums = blocks[0]!.out[0]!;
+          const total = c0nd.plan.total;
           const base = jj * R;
-          const ctr = c.center[j]!;
-          const cst = c.constant[j]!;
-          const vals = bl.vals;
+          let acc2 = 0;
           for (let b = 0; b < R; b++) {
-            const N = bl.ind ? bl.ind[base + b]! : total[b]!;
-            if (N === 0) { vals[b] = NaN; continue; }
-            if (order === 1 && !spec.centred) {
-              vals[b] = cst === cst ? cst : bl.out[0]![base + b]! / N;
-            } else {
-              for (let k = 0; k < order; k++) mom[k] = bl.out[k]![base + b]! / N;
-              vals[b] = spec.evaluate(mom, ctr, N);
+            const v = sums[base + b]! / total[b]!;
+            reps[b] = v;
+            acc2 += v;
+          }
+          if (acc2 - acc2 === 0) { nFinite = R; repSum = acc2; }
+        }
+        if (nFinite === 0) {
+          for (let ci = 0; ci < conds.length; ci++) {
+            const c = conds[ci]!;
+            const bl = blocks[ci]!;
+            const total = c.plan.total;
+            const base = jj * R;
+            const ctr = c.center[j]!;
+            const cst = c.constant[j]!;
+            const vals = bl.vals;
+            for (let b = 0; b < R; b++) {
+              const N = bl.ind ? bl.ind[base + b]! : total[b]!;
+              if (N === 0) { vals[b] = NaN; continue; }
+              if (order === 1 && !spec.centred) {
+                vals[b] = cst === cst ? cst : bl.out[0]![base + b]! / N;
+              } else {
+                for (let k = 0; k < order; k++) mom[k] = bl.out[k]![base + b]! / N;
+                vals[b] = spec.evaluate(mom, ctr, N);
+              }
             }
           }
+          const va = blocks[0]!.vals;
+          const vb = conds.length > 1 ? blocks[1]!.vals : null;
+          for (let b = 0; b < R; b++) {
+            const v = vb ? va[b]! - vb[b]! : va[b]!;
+            if (keep) keep[b * T + j] = v;
+            if (v - v === 0) reps[nFinite++] = v;
+          }
         }
-        const va = blocks[0]!.vals;
-        const vb = conds.length > 1 ? blocks[1]!.vals : null;
-        for (let b = 0; b < R; b++) {
-          const v = vb ? va[b]! - vb[b]! : va[b]!;
-          if (keep) keep[b * T + j] = v;
-          if (v - v === 0) reps[nFinite++] = v;
+        if (nFinite < R) { dropped += R - nFinite; droppedCols++; }
+        if (above && nFinite > 0) {
+          let k = 0;
+          for (let b = 0; b < nFinite; b++) if (reps[b]! > 0) k++;
+          above[j] = k / nFinite;
         }
+        if (nFinite > 1) {
+          let mean = repSum;
+          if (!(mean === mean)) {
+            mean = 0;
+            for (let b = 0; b < nFinite; b++) mean += reps[b]!;
+          }
+          mean /= nFinite;
+          let ss = 0;
+          for (let b = 0; b < nFinite; b++) { const d = reps[b]! - mean; ss += d * d; }
+          se[j] = Math.sqrt(ss / (nFinite - 1));
+        }
+        let a = 0;
+        let aFlags = 0;
+        if (o.bca) {
+          acc[0] = 0; acc[1] = 0;
+          for (let ci = 0; ci < conds.length; ci++) jackknifeColumn(conds[ci]!, spec, j, blocks[ci]!.jack, mom, ci === 0 ? 1 : -1, acc);
+          const r = accelerationFrom(acc[0]!, acc[1]!);
+          a = r.a;
+          aFlags = r.flags;
+          accel![j] = aFlags & FLAG_DEGENERATE ? NaN : a;
+        }
+        intervalInPlace(reps, nFinite, est, o.bca, o.alpha, a, aFlags, scratch);
+        low[j] = scratch.low;
+        high[j] = scratch.high;
+        if (z0) z0[j] = scratch.z0;
+        flags[j] = scratch.flags;
       }
-      if (nFinite < R) { dropped += R - nFinite; droppedCols++; }
-      if (above && nFinite > 0) {
-        let k = 0;
-        for (let b = 0; b < nFinite; b++) if (reps[b]! > 0) k++;
-        above[j] = k / nFinite;
-      }
-      if (nFinite > 1) {
-        let mean = 0;
-        for (let b = 0; b < nFinite; b++) mean += reps[b]!;
-        mean /= nFinite;
-        let ss = 0;
-        for (let b = 0; b < nFinite; b++) { const d = reps[b]! - mean; ss += d * d; }
-        se[j] = Math.sqrt(ss / (nFinite - 1));
-      }
-      let a = 0;
-      let aFlags = 0;
-      if (o.bca) {
-        acc[0] = 0; acc[1] = 0;
-        for (let ci = 0; ci < conds.length; ci++) jackknifeColumn(conds[ci]!, spec, j, blocks[ci]!.jack, mom, ci === 0 ? 1 : -1, acc);
-        const r = accelerationFrom(acc[0]!, acc[1]!);
-        a = r.a;
-        aFlags = r.flags;
-        accel![j] = aFlags & FLAG_DEGENERATE ? NaN : a;
-      }
-      intervalInPlace(reps, nFinite, est, o.bca, o.alpha, a, aFlags, scratch);
-      low[j] = scratch.low;
-      high[j] = scratch.high;
-      if (z0) z0[j] = scratch.z0;
-      flags[j] = scratch.flags;
     }
+  } finally {
+    source.close();
   }
-  const warnings = collectWarnings(o, T, flags, tooFew, anyBad, dropped, droppedCols, R);
+  const warnings = [...source.warnings, ...collectWarnings(o, T, flags, tooFew, anyBad, dropped, droppedCols, R)];
   return {
     estimate, low, high, standardError: se, z0, acceleration: accel,
     replicates: keep ? { data: keep, rows: R, cols: T } : undefined,
