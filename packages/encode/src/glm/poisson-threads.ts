@@ -103,7 +103,11 @@ function collect(r: Running): PoissonCellFit[] | null {
 export function runUnits(ctx: GlmContext, units: readonly UnitInput[], threads: number): { cells: PoissonCellFit[]; warnings: ResultWarning[] } {
   const U = units.length;
   const nnz = ctx.design.rowPtr[ctx.design.nRows]!;
-  let w = threads > 0 ? threads : nnz * U >= AUTO_MIN_WORK ? availableParallelism() : 1;
+  // Auto: one thread per core, or the per-process budget a parent set in TUNINGFORK_THREADS
+  // (the cli gives each of its session workers cores / jobs). Thread count never changes results.
+  const budget = Number(process.env.TUNINGFORK_THREADS);
+  const auto = Number.isInteger(budget) && budget >= 1 ? Math.min(budget, availableParallelism()) : availableParallelism();
+  let w = threads > 0 ? threads : nnz * U >= AUTO_MIN_WORK ? auto : 1;
   w = Math.max(1, Math.min(w, U));
   if (w === 1) return { cells: units.map((u, ui) => fitUnit(ctx, u, ui)), warnings: [] };
   // Validate every unit first, so a bad count throws the same error as on one thread.

@@ -1,0 +1,63 @@
+import { readdirSync, rmSync, rmdirSync } from 'node:fs';
+import { hostname } from 'node:os';
+import { join } from 'node:path';
+import { threadId } from 'node:worker_threads';
+
+/** Name of the folder, inside the output folder, where sessions are assembled before renaming. */
+export const STAGING_DIR = '.staging';
+
+let sequence = 0;
+
+/**
+ * A fresh staging path for one session: `<out>/.staging/<id>~<host>~<pid>~<thread>~<n>`. The
+ * owner's host and process id in the name let a later run remove what a killed run left.
+ */
+export function stagingPath(outRoot: string, id: string): string {
+  return join(outRoot, STAGING_DIR, `${id}~${hostname()}~${process.pid}~${threadId}~${(sequence++).toString(36)}`);
+}
+
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/**
+ * Remove staging folders left by processes of this host that no longer run (a killed run).
+ * Folders of live processes (another shard on the same machine) and of other hosts are kept.
+ *
+ * @returns Number of folders removed.
+ */
+export function removeStaleStaging(outRoot: string): number {
+  const dir = join(outRoot, STAGING_DIR);
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return 0;
+  }
+  const host = hostname();
+  let removed = 0;
+  for (const name of names) {
+    const parts = name.split('~');
+    if (parts.length < 5) continue;
+    const [h, pidText] = parts.slice(-4);
+    const pid = Number(pidText);
+    if (h !== host || !Number.isSafeInteger(pid) || pid === process.pid || alive(pid)) continue;
+    rmSync(join(dir, name), { recursive: true, force: true });
+    removed++;
+  }
+  return removed;
+}
+
+/** Remove the staging folder when it is empty (another process may still be using it). */
+export function removeEmptyStaging(outRoot: string): void {
+  try {
+    rmdirSync(join(outRoot, STAGING_DIR));
+  } catch {
+    // not empty (another shard is working) or already gone
+  }
+}
