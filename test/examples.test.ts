@@ -31,3 +31,14 @@ describe('examples', () => {
     expect(rows.map((r) => r.cell)).toEqual(['unit001', 'unit002', 'unit003']);
   });
 });
+
+describe('examples (batch)', () => {
+  it('batch-and-merge runs two sessions and reads the merged cells table with arquero', async () => {
+    const { main: batch } = await import('../examples/batch-and-merge.js');
+    // One job: the cli's session workers start from the built dist/, which the source-level test run does not use.
+    const r = await batch(join(out, 'batch'), 240, 1);
+    // 4 sites + 2 units per session, two sessions in groups A and B.
+    expect(r.cells).toBe(12);
+    expect(r.byGroup).toEqual({ A: 6, B: 6 });
+  }, 300_000);
+});
