@@ -1,4 +1,4 @@
-import { mkdir, readFile, rename, rm } from 'node:fs/promises';
+import { mkdir, readFile, rm } from 'node:fs/promises';
 import { join, relative, sep } from 'node:path';
 import { canonicalJson, makeProvenance, TuningforkError, VERSION } from '@tuningfork/core';
 import { batchReport } from '@tuningfork/report';
@@ -10,7 +10,7 @@ import type { MergedKind, MergedPart } from '../internal/merged-arrow.js';
 import { DONE_FILE, stableJson } from '../output/done-record.js';
 import type { DoneRecord } from '../output/done-record.js';
 import { resolveInside } from '../output/paths.js';
-import { stagingPath } from '../output/staging.js';
+import { publishStaged, stagingPath } from '../output/staging.js';
 import { MERGED_DIR } from '../batch/plan.js';
 import type { SessionJob } from '../run/job-types.js';
 
@@ -157,16 +157,7 @@ export async function mergeOutputs(jobs: readonly SessionJob[], outRoot: string)
     await writeFileAtomic(join(stage, 'summary.txt'), `${text.join('\n')}\n`);
     const final = join(outRoot, MERGED_DIR);
     await writeFileAtomic(join(stage, 'report.html'), await batchHtml(done, final, summary));
-    try {
-      await rename(stage, final);
-    } catch (e) {
-      const errno = (e as NodeJS.ErrnoException).code;
-      if (errno !== 'ENOTEMPTY' && errno !== 'EEXIST') throw e;
-      const old = `${stage}.old`;
-      await rename(final, old);
-      await rename(stage, final);
-      await rm(old, { recursive: true, force: true });
-    }
+    await publishStaged(stage, final);
     return { tables: rows, sessions: done.length, dir: final, text };
   } catch (e) {
     await rm(stage, { recursive: true, force: true }).catch(() => undefined);

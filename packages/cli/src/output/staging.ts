@@ -1,4 +1,5 @@
 import { readdirSync, rmSync, rmdirSync } from 'node:fs';
+import { rename, rm } from 'node:fs/promises';
 import { hostname } from 'node:os';
 import { join } from 'node:path';
 import { threadId } from 'node:worker_threads';
@@ -59,5 +60,22 @@ export function removeEmptyStaging(outRoot: string): void {
     rmdirSync(join(outRoot, STAGING_DIR));
   } catch {
     // not empty (another shard is working) or already gone
+  }
+}
+
+/**
+ * Move a finished staging folder to `final`, replacing a previous `final` folder: the old one is
+ * renamed aside first and removed after, so `final` is always either the old or the new folder.
+ */
+export async function publishStaged(stage: string, final: string): Promise<void> {
+  try {
+    await rename(stage, final);
+  } catch (e) {
+    const errno = (e as NodeJS.ErrnoException).code;
+    if (errno !== 'ENOTEMPTY' && errno !== 'EEXIST') throw e;
+    const old = `${stage}.old`;
+    await rename(final, old);
+    await rename(stage, final);
+    await rm(old, { recursive: true, force: true });
   }
 }

@@ -1,4 +1,4 @@
-import { mkdir, rename, rm } from 'node:fs/promises';
+import { mkdir, rm } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
 import { sha256File, TuningforkError } from '@tuningfork/core';
 import { writeArrow, writeCsv, writeFileAtomic } from '@tuningfork/io';
@@ -6,7 +6,7 @@ import type { AnalysisOutputs } from '../pipeline.js';
 import { DONE_FILE, stableJson } from './done-record.js';
 import type { DoneRecord, OutputFileRecord } from './done-record.js';
 import { resolveInside } from './paths.js';
-import { stagingPath } from './staging.js';
+import { stagingPath, publishStaged } from './staging.js';
 
 /** File name of the provenance record of a session folder. */
 export const PROVENANCE_FILE = 'provenance.json';
@@ -83,16 +83,7 @@ export async function commitSession(w: SessionWrite): Promise<OutputFileRecord[]
     const done: DoneRecord = { ...w.done, outputs: files };
     await writeFileAtomic(join(stage, DONE_FILE), stableJson(done));
     await mkdir(dirname(final), { recursive: true });
-    try {
-      await rename(stage, final);
-    } catch (e) {
-      const errno = (e as NodeJS.ErrnoException).code;
-      if (errno !== 'ENOTEMPTY' && errno !== 'EEXIST') throw e;
-      const old = `${stage}.old`;
-      await rename(final, old);
-      await rename(stage, final);
-      await rm(old, { recursive: true, force: true });
-    }
+    await publishStaged(stage, final);
     return files;
   } catch (e) {
     await rm(stage, { recursive: true, force: true }).catch(() => undefined);
