@@ -59,6 +59,15 @@ describe('analyzeSession', () => {
     expect(tableHashes(again)).toEqual(tableHashes(await first));
   });
 
+  it('leaves a choice without an outcome out of the learning model, with a warning naming it', async () => {
+    const tr = sim.session.trials!;
+    const reward = Float64Array.from(tr.reward);
+    reward[reward.length - 1] = NaN; // the session ended before the last outcome
+    const a = await analyzeSession({ ...sim.session, trials: { ...tr, reward } }, { ...quick, encode: false, report: false, qc: false });
+    expect(a.warnings.map((w) => w.code)).toContain('PIPELINE_CHOICE_WITHOUT_OUTCOME');
+    expect(a.learning?.fit.nSkipped).toBe(1);
+  });
+
   it('rejects unknown or invalid options with coded errors', async () => {
     await expect(analyzeSession(sim.session, { seeds: 1 } as object)).rejects.toMatchObject({ code: 'TF_UNKNOWN_OPTION' });
     await expect(analyzeSession(sim.session, { periEvent: { preSecs: 1 } } as object)).rejects.toMatchObject({ code: 'TF_UNKNOWN_OPTION' });

@@ -316,12 +316,20 @@ function withMoveOnsets(ev: EventTable, onsets: Float64Array, vigour: Float64Arr
 }
 
 function fitLearning(trials: TrialTable, opts: FitChoiceModelOptions, seed: number, warnings: ResultWarning[]): SessionAnalysis['learning'] {
-  const n = trials.choice.filter((c) => c >= 0).length;
+  const n = trials.choice.filter((c, k) => c >= 0 && !Number.isNaN(trials.reward[k]!)).length;
   if (n < 2) {
     warnings.push({ code: 'PIPELINE_NO_LEARNING', message: `analyzeSession: only ${n} trial(s) with a choice; the learning model and the RPE/APE regressors are skipped.` });
     return null;
   }
-  const data = { choice: trials.choice, reward: trials.reward, trial: trials.trial, nOptions: trials.nOptions };
+  // A choice without an outcome (e.g. the session ended before it) carries no prediction error:
+  // the trial is left out of the likelihood (values unchanged), with a warning naming it.
+  const choice = Int32Array.from(trials.choice, (c, k) => (c >= 0 && Number.isNaN(trials.reward[k]!) ? -1 : c));
+  const dropped = trials.choice.reduce((a, c, k) => a + (c >= 0 && choice[k] === -1 ? 1 : 0), 0);
+  if (dropped > 0) {
+    const first = trials.choice.findIndex((c, k) => c >= 0 && choice[k] === -1);
+    warnings.push({ code: 'PIPELINE_CHOICE_WITHOUT_OUTCOME', message: `analyzeSession: ${dropped} trial(s) with a choice but no outcome (first: trial ${trials.trial[first]}) are left out of the learning model.`, details: { trials: dropped } });
+  }
+  const data = { choice, reward: trials.reward, trial: trials.trial, nOptions: trials.nOptions };
   const fit = fitChoiceModel(data, { seed, ...opts });
   warnings.push(...fit.warnings);
   const regressors = choiceRegressors(data, fit.params, { model: fit.model });
