@@ -1,12 +1,12 @@
 import { resolveOptions, rng, TuningforkError, checkInteger } from '@tuningfork/core';
-import type { Matrix, ResultWarning } from '@tuningfork/core';
+import type { ResultWarning } from '@tuningfork/core';
 import { fitPrepared } from '../internal/fit-core.js';
-import type { FitStarts } from '../internal/fit-core.js';
+import type { CoreFit } from '../internal/fit-core.js';
 import { resolveFitSettings } from '../internal/fit-settings.js';
 import { prepareChoices } from './data.js';
 import type { ChoiceData, ChoiceSession } from './data.js';
 import { checkModelOptions, paramRecord, resolveModel } from './model.js';
-import type { ChoiceModel, ChoiceParamName, ModelStructure, ParamTransform } from './model.js';
+import type { ChoiceModel, ChoiceParamName, ModelStructure } from './model.js';
 
 /** Options of {@link fitChoiceModel}. */
 export interface FitChoiceModelOptions {
@@ -64,42 +64,12 @@ const DEFAULTS = Object.freeze({
   boundTolerance: 1e-4,
 });
 
-/** Result of {@link fitChoiceModel}. Arrays are in the order of `paramNames`. */
-export interface ChoiceModelFit {
+/** Result of {@link fitChoiceModel}: the core fit (estimates, SEs, NLL, AIC/BIC, starts) plus bookkeeping. Arrays are in the order of `paramNames`. */
+export interface ChoiceModelFit extends Omit<CoreFit, 'warnings'> {
   /** Canonical model name and structure. */
   readonly model: ModelStructure;
-  readonly paramNames: readonly ChoiceParamName[];
-  /** Maximum-likelihood estimates on the natural scale, by name. */
+  /** Estimates on the natural scale, by name. */
   readonly params: Readonly<Record<string, number>>;
-  readonly estimates: Float64Array;
-  /** Standard errors on the natural scale (delta method); NaN at a bound or when the Hessian is not positive definite. */
-  readonly se: Float64Array;
-  /** Standard errors on the transformed (optimisation) scale. */
-  readonly seTransformed: Float64Array;
-  readonly transforms: readonly ParamTransform[];
-  readonly bounds: readonly (readonly [number, number])[];
-  /** Natural-scale covariance, k × k (NaN rows/columns for parameters at a bound). */
-  readonly covariance: Matrix;
-  /** 1 where the estimate is at a bound (or diverging). */
-  readonly atBound: Uint8Array;
-  /** State of the Hessian of the NLL at the optimum (over the parameters not at a bound). */
-  readonly hessian: 'positive-definite' | 'not-positive-definite' | 'none';
-  /** Minimum negative log-likelihood (natural log). */
-  readonly nll: number;
-  /** Number of free parameters. */
-  readonly k: number;
-  /** Number of modelled choices (trials with a choice). */
-  readonly n: number;
-  /** 2k + 2·NLL. */
-  readonly aic: number;
-  /** k·ln n + 2·NLL. */
-  readonly bic: number;
-  readonly nStarts: number;
-  /** Starts whose NLL is within `bestTolerance` of the best. */
-  readonly nAtBest: number;
-  /** The best start met the gradient tolerance. */
-  readonly converged: boolean;
-  readonly starts: FitStarts;
   readonly nOptions: number;
   readonly nSessions: number;
   /** Trials without a choice (skipped). */

@@ -38,24 +38,37 @@ export interface FitStarts {
   readonly stop: readonly BfgsStop[];
 }
 
-/** Core fit result (the public `ChoiceModelFit` adds bookkeeping). */
+/** Core fit result (the public `ChoiceModelFit` adds bookkeeping). Arrays follow `paramNames`. */
 export interface CoreFit {
   readonly paramNames: readonly ChoiceParamName[];
+  /** Maximum-likelihood estimates on the natural scale. */
   readonly estimates: Float64Array;
+  /** Standard errors on the natural scale (delta method); NaN at a bound or when the Hessian is not positive definite. */
   readonly se: Float64Array;
+  /** Standard errors on the transformed (optimisation) scale. */
   readonly seTransformed: Float64Array;
   readonly transforms: readonly ParamTransform[];
   readonly bounds: readonly (readonly [number, number])[];
+  /** Natural-scale covariance, k × k (NaN rows/columns for parameters at a bound). */
   readonly covariance: Matrix;
+  /** 1 where the estimate is at a bound (or diverging). */
   readonly atBound: Uint8Array;
+  /** State of the Hessian of the NLL at the optimum (over the parameters not at a bound). */
   readonly hessian: 'positive-definite' | 'not-positive-definite' | 'none';
+  /** Minimum negative log-likelihood (natural log). */
   readonly nll: number;
+  /** Number of free parameters. */
   readonly k: number;
+  /** Number of modelled choices (trials with a choice). */
   readonly n: number;
+  /** 2k + 2·NLL. */
   readonly aic: number;
+  /** k·ln n + 2·NLL. */
   readonly bic: number;
   readonly nStarts: number;
+  /** Starts whose NLL is within `bestTolerance` of the best. */
   readonly nAtBest: number;
+  /** The best start met the gradient tolerance. */
   readonly converged: boolean;
   readonly starts: FitStarts;
   readonly warnings: ResultWarning[];
