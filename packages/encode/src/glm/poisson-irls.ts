@@ -216,6 +216,8 @@ export interface IrlsOptions {
   readonly exactIterations?: number;
   /** Rows used for the working Hessian: every stride-th (weights × stride); 1 = all. @defaultValue 1 */
   readonly hessianStride?: number;
+  /** Compute the deviance at the end (one pass with exp); NaN in the result otherwise. @defaultValue true */
+  readonly wantDeviance?: boolean;
 }
 
 /** Fit on the rows in `ranges`; `pen` (length p) is the penalty diagonal of the slopes. */
@@ -316,7 +318,7 @@ export function irls(prob: PoissonProblem, ranges: RowRanges, pen: Float64Array,
     finishHessian(h, q1, pen);
     hess = Float64Array.from(h);
   }
-  return { beta, deviance: deviance(prob, ranges, eta), objective: obj, iterations: it, converged, hessian: hess, nRows, ySum };
+  return { beta, deviance: opts.wantDeviance ?? true ? deviance(prob, ranges, eta) : NaN, objective: obj, iterations: it, converged, hessian: hess, nRows, ySum };
 }
 
 /** Inverse of a penalised Hessian (Wald covariance), or null when not positive definite. */

@@ -95,8 +95,21 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
     warnings.push({ code: 'TF_DEGENERATE_SIGNAL', message: `${fn}: unit '${name}' has ${nSpk === 0 ? 'no spikes' : 'constant counts'}; a Poisson GLM is not identifiable. Skipped.`, details: { cell: name, nSpikes: nSpk } });
     return nanFit();
   }
+  // Column sums depend on the rows used only; without NaN counts those are the design's own.
+  const shared = nNaN === 0;
   const fitModel = (cols: Int32Array | null) => {
-    const sub = cols ? subDesign(design, cols) : design;
+    const cached = restricted(design, cols);
+    const sub = cached.sub;
+    const colStats = (d: EncodingDesign, r0: number, r1: number, v: Uint8Array | null): ColStats => {
+      if (!shared) return columnStats(d, r0, r1, v);
+      const key = `${r0}:${r1}`;
+      let st = cached.stats.get(key);
+      if (!st) {
+        st = columnStats(d, r0, r1, v);
+        cached.stats.set(key, st);
+      }
+      return st;
+    };
     const prob: PoissonProblem = { n, p: sub.nCols, rowPtr: sub.rowPtr, colIdx: sub.colIdx, values: sub.values, y, offset, rowValid: valid, structure: convStructure(design, cols, sub) };
     const eta = new Float64Array(n);
     const mu = new Float64Array(n);
@@ -158,7 +171,7 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
       const ySumTr = fullScore.ySum - sEx.ySum;
       const nTr = fullScore.nRows - sEx.nRows;
       if (foldFits === 'exact') {
-        const fr = irls(prob, train, pen, { tol, maxIterations: maxIt, fixedHessian: hFix, start: betaF, wantHessian: false }, eta, mu);
+        const fr = irls(prob, train, pen, { tol, maxIterations: maxIt, fixedHessian: hFix, start: betaF, wantHessian: false, wantDeviance: false }, eta, mu);
         itTot += fr.iterations;
         conv = conv && fr.converged;
         betaF = fr.beta;
@@ -223,7 +236,25 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
 
 interface ColStats { readonly s: Float64Array; readonly ss: Float64Array; readonly n: number }
 
-function colStats(d: EncodingDesign, r0: number, r1: number, valid: Uint8Array | null): ColStats {
+/** Per design and column set (key '*' = all): the restricted CSR and cached column sums by row range. */
+const restrictedCache = new WeakMap<EncodingDesign, Map<string, { sub: EncodingDesign; stats: Map<string, ColStats> }>>();
+
+function restricted(design: EncodingDesign, cols: Int32Array | null): { sub: EncodingDesign; stats: Map<string, ColStats> } {
+  let byCols = restrictedCache.get(design);
+  if (!byCols) {
+    byCols = new Map();
+    restrictedCache.set(design, byCols);
+  }
+  const key = cols ? Array.from(cols).join(',') : '*';
+  let entry = byCols.get(key);
+  if (!entry) {
+    entry = { sub: cols ? subDesign(design, cols) : design, stats: new Map() };
+    byCols.set(key, entry);
+  }
+  return entry;
+}
+
+function columnStats(d: EncodingDesign, r0: number, r1: number, valid: Uint8Array | null): ColStats {
   const s = new Float64Array(d.nCols);
   const ss = new Float64Array(d.nCols);
   let n = 0;

@@ -108,11 +108,11 @@ function moduleBytes(): Uint8Array {
   const nParams = 13;
   let nextLocal = nParams;
   const i32Local = () => nextLocal++;
-  const [G, BASE, I0, GS, K, LEN, P, B, END, E, E1, A, PTR, Q] = Array.from({ length: 14 }, i32Local) as number[] as [
-    number, number, number, number, number, number, number, number, number, number, number, number, number, number];
+  const [G, BASE, I0, GS, K, LEN, P, B, END, E, E1, A, PTR, Q, D, E2, A2] = Array.from({ length: 17 }, i32Local) as number[] as [
+    number, number, number, number, number, number, number, number, number, number, number, number, number, number, number, number, number];
   const nI32 = nextLocal - nParams;
   const v128Local = () => nextLocal++;
-  const [Y01, Y23, W, S01, S23] = [v128Local(), v128Local(), v128Local(), v128Local(), v128Local()];
+  const [Y01, Y23, W, S01, S23, T01, T23] = [v128Local(), v128Local(), v128Local(), v128Local(), v128Local(), v128Local(), v128Local()];
   const nV128 = nextLocal - nParams - nI32;
 
   // ---- Table: for g < ng, doubling over the group's rows. ----
@@ -179,6 +179,49 @@ function moduleBytes(): Uint8Array {
     ...get(PTR), ...i32c(2), ...ADD, ...set(PTR),
     ...get(BASE), ...i32c(GROUP_BYTES), ...ADD, ...set(BASE),
   ]);
+  // Two resamples at a time (b, b + 1): the same additions per resample in the same order, on
+  // two independent accumulator chains, so the adds of one hide the latency of the other's.
+  // Their offsets are D = 2·ng bytes apart; both walk the same group tables.
+  const generalPairs = whileLoop([...get(PTR), ...get(END), ...LT_S], [
+    ...get(PTR), ...i32load16(0), ...set(E),
+    ...get(PTR), ...get(D), ...ADD, ...i32load16(0), ...set(E2),
+    ...get(BASE), ...get(E), ...i32c(255), ...AND, ...i32c(5), ...SHL, ...ADD, ...set(A),
+    ...get(BASE), ...get(E), ...i32c(8), ...SHR_U, ...i32c(5), ...SHL, ...ADD, ...set(E),
+    ...get(BASE), ...get(E2), ...i32c(255), ...AND, ...i32c(5), ...SHL, ...ADD, ...set(A2),
+    ...get(BASE), ...get(E2), ...i32c(8), ...SHR_U, ...i32c(5), ...SHL, ...ADD, ...set(E2),
+    ...get(S01), ...get(A), ...vload(0), ...get(E), ...vload(8192), ...FADD, ...FADD, ...set(S01),
+    ...get(T01), ...get(A2), ...vload(0), ...get(E2), ...vload(8192), ...FADD, ...FADD, ...set(T01),
+    ...get(S23), ...get(A), ...vload(16), ...get(E), ...vload(8192 + 16), ...FADD, ...FADD, ...set(S23),
+    ...get(T23), ...get(A2), ...vload(16), ...get(E2), ...vload(8192 + 16), ...FADD, ...FADD, ...set(T23),
+    ...get(PTR), ...i32c(2), ...ADD, ...set(PTR),
+    ...get(BASE), ...i32c(GROUP_BYTES), ...ADD, ...set(BASE),
+  ]);
+  const binaryPairs = whileLoop([...get(PTR), ...get(END), ...LT_S], [
+    ...get(BASE), ...get(PTR), ...i32load8(0), ...i32c(5), ...SHL, ...ADD, ...set(A),
+    ...get(BASE), ...get(PTR), ...get(D), ...ADD, ...i32load8(0), ...i32c(5), ...SHL, ...ADD, ...set(A2),
+    ...get(S01), ...get(A), ...vload(0), ...FADD, ...set(S01),
+    ...get(T01), ...get(A2), ...vload(0), ...FADD, ...set(T01),
+    ...get(S23), ...get(A), ...vload(16), ...FADD, ...set(S23),
+    ...get(T23), ...get(A2), ...vload(16), ...FADD, ...set(T23),
+    ...get(PTR), ...i32c(2), ...ADD, ...set(PTR),
+    ...get(BASE), ...i32c(GROUP_BYTES), ...ADD, ...set(BASE),
+  ]);
+  const pairLoop = whileLoop([...get(B), ...i32c(1), ...ADD, ...get(R), ...LT_S], [
+    ...get(OUT), ...get(B), ...i32c(32), ...MUL, ...ADD, ...set(Q),
+    ...get(Q), ...vload(0), ...set(S01),
+    ...get(Q), ...vload(16), ...set(S23),
+    ...get(Q), ...vload(32), ...set(T01),
+    ...get(Q), ...vload(48), ...set(T23),
+    ...get(OFF), ...get(B), ...get(NG), ...MUL, ...i32c(2), ...MUL, ...ADD, ...set(PTR),
+    ...get(PTR), ...get(D), ...ADD, ...set(END),
+    ...get(TAB), ...set(BASE),
+    ...ifElse(get(GEN), generalPairs, binaryPairs),
+    ...get(Q), ...get(S01), ...vstore(0),
+    ...get(Q), ...get(S23), ...vstore(16),
+    ...get(Q), ...get(T01), ...vstore(32),
+    ...get(Q), ...get(T23), ...vstore(48),
+    ...get(B), ...i32c(2), ...ADD, ...set(B),
+  ]);
   const resampleLoop = whileLoop([...get(B), ...get(R), ...LT_S], [
     ...get(OUT), ...get(B), ...i32c(32), ...MUL, ...ADD, ...set(Q),
     ...get(Q), ...vload(0), ...set(S01),
@@ -219,6 +262,8 @@ function moduleBytes(): Uint8Array {
     ...zeroLoop,
     ...i32c(0), ...set(G),
     ...i32c(0), ...set(B),
+    ...get(NG), ...i32c(2), ...MUL, ...set(D),
+    ...pairLoop,
     ...resampleLoop,
     ...ifElse(get(GEN), [...i32c(0), ...set(B), ...extrasLoop], []),
     0x0b,
