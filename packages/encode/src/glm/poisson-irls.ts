@@ -14,6 +14,7 @@
 import { cholesky, choleskyInverse, choleskySolveInPlace } from '../linalg/cholesky.js';
 import type { CholeskyFactor } from '../linalg/cholesky.js';
 import { convPredict, convScore } from './conv-structure.js';
+import { gramWasm } from './gram-kernel.js';
 import type { ConvStructure } from './conv-structure.js';
 
 /** Sparse design rows with responses and offsets (log exposure), trusted by the engine. */
@@ -161,6 +162,7 @@ function evaluateStructured(prob: PoissonProblem, s: ConvStructure, ranges: RowR
 
 /** Weighted Gram XᵀWX (with intercept) over ranges into h ((p+1)², full), without penalty. */
 export function weightedGram(prob: PoissonProblem, ranges: RowRanges, muArr: Float64Array, h: Float64Array, stride = 1): void {
+  if (gramWasm(prob, ranges, muArr, prob.rowValid, h, stride)) return;
   const { rowPtr, colIdx, values, rowValid } = prob;
   const q1 = prob.p + 1;
   for (let q = 0; q < ranges.length; q += 2) {
@@ -212,10 +214,22 @@ export interface IrlsOptions {
   readonly start?: Float64Array;
   /** Compute the penalised Hessian at the solution (one extra pass). @defaultValue true */
   readonly wantHessian?: boolean;
+  /** Iterations that use `fixedHessian` before switching to exact IRLS Hessians. @defaultValue Infinity */
+  readonly fixedIterations?: number;
   /** Exact-Hessian iterations before switching to the first exact Hessian kept fixed. @defaultValue Infinity */
   readonly exactIterations?: number;
   /** Rows used for the working Hessian: every stride-th (weights × stride); 1 = all. @defaultValue 1 */
   readonly hessianStride?: number;
+  /**
+   * Newton-decrement stop: in an iteration whose Hessian is exact at the iterate (computed there
+   * from every row, not kept), if the decrease of the penalised deviance the quadratic model
+   * predicts, gᵀH⁻¹g, is below `tol` relative, take that Newton step without evaluating it and
+   * stop: near the optimum Newton converges quadratically, so the step leaves a gap of the order
+   * of the square of the decrement (Boyd & Vandenberghe 2004, Convex Optimization, §9.5). `eta`,
+   * `mu` and `objective` then refer to the iterate before that step: for callers that only need
+   * the coefficients. @defaultValue false
+   */
+  readonly newtonFinish?: boolean;
   /** Compute the deviance at the end (one pass with exp); NaN in the result otherwise. @defaultValue true */
   readonly wantDeviance?: boolean;
 }
@@ -262,6 +276,7 @@ export function irls(prob: PoissonProblem, ranges: RowRanges, pen: Float64Array,
   const trial = new Float64Array(q1);
   while (it < opts.maxIterations) {
     it++;
+    if (fixed && opts.fixedHessian && it > (opts.fixedIterations ?? Infinity)) fixed = null;
     let fac: CholeskyFactor | null = fixed;
     if (!fac) {
       h.fill(0);
@@ -278,6 +293,15 @@ export function irls(prob: PoissonProblem, ranges: RowRanges, pen: Float64Array,
       if (it >= (opts.exactIterations ?? Infinity)) fixed = fac;
     }
     const step = choleskySolveInPlace(fac, Float64Array.from(g));
+    if (opts.newtonFinish && fac !== fixed && stride === 1) {
+      let decrement = 0;
+      for (let j = 0; j < q1; j++) decrement += g[j]! * step[j]!;
+      if (decrement / (Math.abs(2 * obj + devConst) + 0.1) < opts.tol) {
+        for (let j = 0; j < q1; j++) beta[j] = beta[j]! + step[j]!;
+        converged = true;
+        break;
+      }
+    }
     let scale = 1;
     let objNew = Infinity;
     for (let half = 0; half < 30; half++) {

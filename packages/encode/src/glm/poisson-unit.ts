@@ -171,7 +171,10 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
       const ySumTr = fullScore.ySum - sEx.ySum;
       const nTr = fullScore.nRows - sEx.nRows;
       if (foldFits === 'exact') {
-        const fr = irls(prob, train, pen, { tol, maxIterations: maxIt, fixedHessian: hFix, start: betaF, wantHessian: false, wantDeviance: false }, eta, mu);
+        // From the one-step estimate: one more step with the Hessian at β̂ (close, and already
+        // there), then Newton with the exact training Hessian at each iterate, which near the
+        // optimum usually has a decrement below tol and is the last (taken without evaluation).
+        const fr = irls(prob, train, pen, { tol, maxIterations: maxIt, start: betaF, fixedHessian: hFix, fixedIterations: 1, wantHessian: false, newtonFinish: true, wantDeviance: false }, eta, mu);
         itTot += fr.iterations;
         conv = conv && fr.converged;
         betaF = fr.beta;
