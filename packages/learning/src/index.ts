@@ -17,6 +17,8 @@ export type { TdTrials, TdWithinTrialOptions, TdWithinTrialResult } from './td/t
 export { CHOICE_MODEL_NAMES, DEFAULT_BOUNDS, PARAM_DOMAIN, START_RANGES } from './choice/model.js';
 export type { ChoiceModel, ChoiceModelName, ChoiceModelSpec, ChoiceParamName, ModelStructure, ParamTransform } from './choice/model.js';
 export type { ChoiceData, ChoiceSession } from './choice/data.js';
+export { WEAK_PRIORS } from './choice/priors.js';
+export type { ChoicePriors, ParamPrior } from './choice/priors.js';
 
 // Choice models: likelihood, fitting, regressors, simulation
 export { choiceLogLikelihood } from './choice/choice-log-likelihood.js';

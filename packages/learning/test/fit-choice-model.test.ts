@@ -1,12 +1,20 @@
 import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
 import { expectAllClose, here, loadFixture } from '@tuningfork/test-utils';
-import { fitChoiceModel, fitEachSession } from '../src/index.js';
+import { WEAK_PRIORS, fitChoiceModel, fitEachSession } from '../src/index.js';
+import type { ChoicePriors } from '../src/index.js';
 
 const fixtures = `${here(import.meta.url)}/fixtures`;
 // Reference: scipy 1.17 BFGS on (logit α, log β), 50 starts; see fixtures/scipy/gen_mle_fixture.py.
 // Same numbers as INFERENCE.md §3.8 "MLE fixture".
 const mle = loadFixture('scipy/mle_fixture.json', fixtures);
 const data = { choice: mle.choices as Float64Array, reward: mle.rewards as Float64Array };
+// Reference: scipy 1.17 BFGS on the negative log posterior (NLL − Σ stats.<dist>.logpdf), 30 starts;
+// see fixtures/scipy/gen_map_fixture.py.
+const map = loadFixture('scipy/map_fixture.json', fixtures);
+type MapCase = { model: string; priors: ChoicePriors; estimates: Float64Array; objective: number; nll: number; logPrior: number; se: Float64Array; aic: number; bic: number; nAtBest: number };
+const mapCases = map.cases as Record<string, MapCase>;
+const trials300 = { choice: map.trials300.choices as Float64Array, reward: map.trials300.rewards as Float64Array };
 
 describe('fitChoiceModel', () => {
   it('fitChoiceModel reproduces the frozen scipy BFGS fit of INFERENCE.md §3.8 (α̂, β̂, NLL, SE, AIC, BIC)', () => {
@@ -133,6 +141,81 @@ describe('fitChoiceModel', () => {
     expect(() => fitChoiceModel(data, { model: 'q', startRanges: { beta: [30, 40] }, bounds: { beta: [0, 20] } })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
     expect(() => fitChoiceModel(data, { model: 'sarsa' as never })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
     expect(() => fitChoiceModel(data, { stars: 3 } as never)).toThrow(expect.objectContaining({ code: 'TF_UNKNOWN_OPTION' }));
+  });
+  // Reference: scipy MAP fits (gen_map_fixture.py). Both optimisers stop at |∇| ≲ 1e-8 on a smooth objective: the
+  // objective agrees to ~1e-12 relative (rtol 1e-10), estimates to ~1e-7 (rtol 1e-5, as for the ML fixture). scipy's SEs
+  // come from second differences of the objective, ours from differences of the exact gradient + delta method: the
+  // two finite-difference Hessians agree to ~1e-4 relative (rtol 2e-4, as for the ML fixture).
+  for (const [name, starts] of [['q-weak', 10], ['q-ck-weak', 20], ['q-ck-custom', 20]] as const) {
+    it(`fitChoiceModel with priors reproduces the scipy MAP fit '${name}' (estimates, objective, log prior, NLL, SE, AIC, BIC)`, () => {
+      const c = mapCases[name]!;
+      const d = name === 'q-weak' ? data : trials300;
+      const priors = name.endsWith('weak') ? 'weakly-informative' : c.priors;
+      const fit = fitChoiceModel(d, { model: c.model as 'q' | 'q-ck', priors, starts, seed: 1 });
+      expect(fit.estimator).toBe('maximum-a-posteriori');
+      expectAllClose(fit.objective, c.objective, { rtol: 1e-10, source: map.source, label: 'NLL − log prior' });
+      expectAllClose(fit.estimates, c.estimates, { rtol: 1e-5, source: map.source, label: 'posterior mode' });
+      expectAllClose(fit.logPrior, c.logPrior, { rtol: 1e-7, source: map.source, label: 'Σ log prior at the mode' });
+      expectAllClose(fit.nll, c.nll, { rtol: 1e-8, source: map.source, label: 'NLL at the mode' });
+      expectAllClose(fit.se, c.se, { rtol: 2e-4, source: map.source, label: 'posterior SD (Laplace)' });
+      // AIC/BIC stay defined on the likelihood at the estimates (2k + 2·NLL, k·ln n + 2·NLL).
+      expectAllClose([fit.aic, fit.bic], [c.aic, c.bic], { rtol: 1e-8, source: map.source, label: 'AIC, BIC' });
+      expect(fit.priors).toEqual(fit.paramNames.map((p) => (c.priors as Record<string, unknown>)[p]));
+      // scipy: every one of 30 starts reaches the best objective (a single mode).
+      expect(c.nAtBest).toBe(30);
+      expect(fit.nAtBest).toBe(starts);
+      expect(fit.converged).toBe(true);
+    });
+  }
+
+  it("fitChoiceModel with priors 'none' is plain maximum likelihood (log prior 0, objective = NLL)", () => {
+    const fit = fitChoiceModel(data, { model: 'q', starts: 5, seed: 1, priors: 'none' });
+    expect(fit.estimator).toBe('maximum-likelihood');
+    expect(fit.priors).toEqual([null, null]);
+    expect(fit.logPrior).toBe(0);
+    expect(fit.objective).toBe(fit.nll);
+    expectAllClose(fit.nll, mle.nll, { rtol: 1e-10, source: mle.source });
+  });
+
+  // Reference (textbook): Beta–Bernoulli conjugacy (Gelman et al. 2013, Bayesian Data Analysis, 3rd ed., §2.4). With k
+  // ones in n trials and a Beta(a, b) prior the posterior is Beta(k + a, n − k + b), whose mode is
+  // (k + a − 1)/(n + a + b − 2); the curvature of −log posterior there gives the Laplace SD √(p(1 − p)/(n + a + b − 2)).
+  it("fitChoiceModel's MAP of the 'bias' model equals the Beta–Bernoulli posterior mode and its Laplace SD", () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 8, max: 60 }), fc.double({ min: 0.1, max: 0.9, noNaN: true }), fc.double({ min: 1, max: 6, noNaN: true }), fc.double({ min: 1, max: 6, noNaN: true }), (n, frac, a, b) => {
+        const k = Math.max(1, Math.min(n - 1, Math.round(frac * n)));
+        const choice = Array.from({ length: n }, (_, i) => (i < k ? 1 : 0));
+        const fit = fitChoiceModel({ choice, reward: new Array(n).fill(0) }, { model: 'bias', starts: 2, seed: 1, priors: { bias: { dist: 'beta', a, b } } });
+        const mode = (k + a - 1) / (n + a + b - 2);
+        // gradient tolerance 1e-6 on the logit scale → mode within ~1e-7; SE from a 1e-5-step difference → ~1e-6.
+        expectAllClose(fit.params.bias!, mode, { rtol: 1e-6, atol: 1e-9, label: 'posterior mode' });
+        expectAllClose(fit.se[0]!, Math.sqrt((mode * (1 - mode)) / (n + a + b - 2)), { rtol: 1e-5, label: 'Laplace SD' });
+      }),
+      { seed: 61, numRuns: 25 },
+    );
+  });
+
+  // (derived here) The deterministic chooser of the plateau test above: with ML β runs to its bound; the Gamma(1.2, 5)
+  // prior makes the posterior proper along β, so the MAP β is interior, finite and has an SE.
+  it('fitChoiceModel with weakly informative priors keeps a deterministic chooser\'s β off its bound', () => {
+    const det = { choice: new Array(30).fill(0), reward: new Array(30).fill(1) };
+    const fit = fitChoiceModel(det, { model: 'q', starts: 3, priors: 'weakly-informative' });
+    expect(Array.from(fit.atBound)).toEqual([0, 0]);
+    expect(fit.params.beta!).toBeLessThan(50);
+    expect(Number.isFinite(fit.se[1]!)).toBe(true);
+    expect(fit.priors).toEqual([WEAK_PRIORS.alpha, WEAK_PRIORS.beta]);
+  });
+
+  it('fitChoiceModel rejects a prior of the wrong family, improper shapes, unknown keys and unknown parameters', () => {
+    const bad = (priors: unknown, code: string) => expect(() => fitChoiceModel(data, { model: 'q', starts: 1, priors: priors as ChoicePriors })).toThrow(expect.objectContaining({ code }));
+    bad({ alpha: { dist: 'gamma', shape: 2, scale: 1 } }, 'TF_BAD_OPTION'); // α ∈ [0, 1] takes a beta prior
+    bad({ beta: { dist: 'beta', a: 2, b: 2 } }, 'TF_BAD_OPTION');
+    bad({ alpha: { dist: 'beta', a: 0.5, b: 2 } }, 'TF_BAD_OPTION'); // a < 1: unbounded density at 0
+    bad({ beta: { dist: 'gamma', shape: 2, scale: 0 } }, 'TF_BAD_OPTION');
+    bad({ betaC: { dist: 'normal', mean: 0, sd: -1 } }, 'TF_BAD_OPTION');
+    bad({ alpha: { dist: 'beta', a: 2, b: 2, c: 1 } }, 'TF_UNKNOWN_OPTION');
+    bad({ gamma: { dist: 'beta', a: 2, b: 2 } }, 'TF_UNKNOWN_OPTION');
+    bad('flat', 'TF_BAD_OPTION');
   });
 });
 

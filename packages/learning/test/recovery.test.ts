@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { expectAllClose } from '@tuningfork/test-utils';
-import { modelRecovery, parameterRecovery } from '../src/index.js';
+import { WEAK_PRIORS, modelRecovery, parameterRecovery } from '../src/index.js';
 
 describe('parameterRecovery', () => {
   // Wilson & Collins (2019, parameter-recovery section; from memory): with a few hundred trials and moderate β, Q-learning α
@@ -30,6 +30,38 @@ describe('parameterRecovery', () => {
     expect(Array.from(parallel.truth.data)).toEqual(Array.from(serial.truth.data));
     expect(Array.from(parallel.fitted.data)).toEqual(Array.from(serial.fitted.data));
     expect(Array.from(parallel.nll)).toEqual(Array.from(serial.nll));
+  });
+
+  // Reference (textbook): one-sample Kolmogorov–Smirnov test; the 5 % critical value of D for n = 200 is
+  // 1.36/√n = 0.0962 (asymptotic, e.g. Massey 1951, J. Am. Stat. Assoc. 46:68–78, Table 1). Under drawScale
+  // 'unbounded' logit α and log β must be uniform between the transformed range ends.
+  it("parameterRecovery with drawScale 'unbounded' draws logit α and log β uniformly within the ranges (KS test)", async () => {
+    const n = 200;
+    const res = await parameterRecovery({ model: 'q', nAgents: n, nTrials: 5, starts: 1, seed: 3, ranges: { alpha: [0.05, 0.8], beta: [0.8, 8] }, drawScale: 'unbounded' });
+    expect(res.drawScale).toBe('unbounded');
+    const logit = (x: number) => Math.log(x / (1 - x));
+    const scaled = [
+      Array.from({ length: n }, (_, a) => (logit(res.truth.data[a * 2]!) - logit(0.05)) / (logit(0.8) - logit(0.05))),
+      Array.from({ length: n }, (_, a) => Math.log(res.truth.data[a * 2 + 1]! / 0.8) / Math.log(10)),
+    ];
+    for (const u of scaled) {
+      u.sort((x, y) => x - y);
+      expect(u[0]!).toBeGreaterThanOrEqual(0);
+      expect(u[n - 1]!).toBeLessThanOrEqual(1);
+      let d = 0;
+      u.forEach((x, i) => (d = Math.max(d, (i + 1) / n - x, x - i / n)));
+      expect(d).toBeLessThan(1.36 / Math.sqrt(n));
+    }
+    await expect(parameterRecovery({ model: 'q', nAgents: 3, ranges: { alpha: [0, 0.5] }, drawScale: 'unbounded' })).rejects.toMatchObject({ code: 'TF_BAD_OPTION' });
+  });
+
+  it("parameterRecovery reports the priors of its refits ('weakly-informative' → WEAK_PRIORS; default: none)", async () => {
+    const opts = { model: 'q', nAgents: 3, nTrials: 60, starts: 2, seed: 2 } as const;
+    const map = await parameterRecovery({ ...opts, priors: 'weakly-informative' });
+    expect(map.priors).toEqual([WEAK_PRIORS.alpha, WEAK_PRIORS.beta]);
+    const ml = await parameterRecovery(opts);
+    expect(ml.priors).toEqual([null, null]);
+    expect(Array.from(ml.truth.data)).toEqual(Array.from(map.truth.data)); // same agents, only the estimator differs
   });
 
   it('parameterRecovery rejects a draw range outside the parameter domain', async () => {

@@ -7,6 +7,7 @@ import { prepareChoices } from './data.js';
 import type { ChoiceData, ChoiceSession } from './data.js';
 import { checkModelOptions, paramRecord, resolveModel } from './model.js';
 import type { ChoiceModel, ChoiceParamName, ModelStructure } from './model.js';
+import type { ChoicePriors } from './priors.js';
 
 /** Options of {@link fitChoiceModel}. */
 export interface FitChoiceModelOptions {
@@ -48,6 +49,14 @@ export interface FitChoiceModelOptions {
    * @defaultValue 1e-4
    */
   boundTolerance?: number;
+  /**
+   * Priors for maximum a posteriori (MAP) fitting: `'none'` (maximum likelihood),
+   * `'weakly-informative'` (WEAK_PRIORS: Beta(1.1, 1.1) on rates, Gamma(1.2, 5) on β, Normal(0, 5)
+   * on β_C), or a `ParamPrior` per parameter (unlisted parameters are flat; keys of parameters the
+   * model lacks are ignored). NLL, AIC and BIC stay those of the likelihood at the estimates.
+   * @defaultValue 'none'
+   */
+  priors?: ChoicePriors;
 }
 
 const DEFAULTS = Object.freeze({
@@ -62,9 +71,13 @@ const DEFAULTS = Object.freeze({
   bestTolerance: 1e-6,
   hessianStep: 1e-5,
   boundTolerance: 1e-4,
+  priors: 'none' as ChoicePriors,
 });
 
-/** Result of {@link fitChoiceModel}: the core fit (estimates, SEs, NLL, AIC/BIC, starts) plus bookkeeping. Arrays are in the order of `paramNames`. */
+/**
+ * Result of {@link fitChoiceModel}: the core fit (estimator and priors, estimates, SEs, NLL, log
+ * prior, AIC/BIC, starts) plus bookkeeping. Arrays are in the order of `paramNames`.
+ */
 export interface ChoiceModelFit extends Omit<CoreFit, 'warnings'> {
   /** Canonical model name and structure. */
   readonly model: ModelStructure;
@@ -79,8 +92,9 @@ export interface ChoiceModelFit extends Omit<CoreFit, 'warnings'> {
 }
 
 /**
- * Maximum-likelihood fit of a choice model to one session, or to several sessions of one animal
- * pooled (values and habit strengths reset to 0 at each session start; one parameter set).
+ * Maximum-likelihood (or, with `priors`, maximum a posteriori) fit of a choice model to one
+ * session, or to several sessions of one animal pooled (values and habit strengths reset to 0 at
+ * each session start; one parameter set).
  *
  * Minimises NLL = −Σ_t log P(c_t), each term computed as z_c − logsumexp(z), on transformed
  * parameters (logit for bounded, log for half-bounded) with BFGS and a strong-Wolfe line search,
@@ -89,6 +103,13 @@ export interface ChoiceModelFit extends Omit<CoreFit, 'warnings'> {
  * Hessian (of the analytic gradient) on the transformed scale, mapped to the natural scale by the
  * delta method; parameters at a bound get none, and a Hessian that is not positive definite is
  * reported (`hessian`, warning) rather than inverted.
+ *
+ * With `priors`, the minimised objective is NLL − Σ log p(θ_j), each prior a density on the natural
+ * scale (Daw 2011): the estimate is the posterior mode, `se` are posterior SDs of the Laplace
+ * approximation, and `nll`, `aic`, `bic` are those of the likelihood at the mode (for model
+ * comparison by likelihood, as with ML). Weakly informative priors keep a near-deterministic
+ * chooser's β and rates that barely matter off their bounds; they shrink estimates slightly toward
+ * the prior's bulk, so report them (`fit.priors`) with the estimates.
  *
  * Trials with choice −1 are skipped: no likelihood term, values unchanged (reported in `warnings`).
  *
@@ -115,6 +136,9 @@ export interface ChoiceModelFit extends Omit<CoreFit, 'warnings'> {
  *   behavioral data. eLife 8:e49547. doi:10.7554/eLife.49547
  * - Nocedal, J. & Wright, S. J. (2006). Numerical Optimization, 2nd ed. Springer.
  *   doi:10.1007/978-0-387-40065-5
+ * - Daw, N. D. (2011). Trial-by-trial data analysis using computational models. In Decision Making,
+ *   Affect, and Learning: Attention and Performance XXIII, 3–38. Oxford University Press.
+ *   doi:10.1093/acprof:oso/9780199600434.003.0001
  * - Hager, W. W. & Zhang, H. (2005). A new conjugate gradient method with guaranteed descent and an
  *   efficient line search. SIAM J. Optim. 16(1):170–192. doi:10.1137/030601880
  */

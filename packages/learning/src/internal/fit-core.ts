@@ -4,10 +4,12 @@ import type { Matrix, ResultWarning, Rng } from '@tuningfork/core';
 import type { PreparedChoices } from '../choice/data.js';
 import { whereRow } from '../choice/data.js';
 import type { ChoiceParamName, ModelStructure, ParamTransform } from '../choice/model.js';
+import type { ParamPrior } from '../choice/priors.js';
 import { bfgs } from './bfgs.js';
 import type { BfgsStop } from './bfgs.js';
 import { ChoiceEngine, compileModel } from './choice-engine.js';
 import { inverseSpd } from './linalg.js';
+import { logPriorSum } from './priors.js';
 import { atBound, jacobian, toNatural, toTransformed, transformFor } from './transforms.js';
 import type { Transform } from './transforms.js';
 
@@ -21,6 +23,8 @@ export interface FitSettings {
   readonly bestTolerance: number;
   readonly hessianStep: number;
   readonly boundTolerance: number;
+  /** Prior per parameter (null = flat); all null → maximum likelihood. */
+  readonly priors: readonly (ParamPrior | null)[];
 }
 
 /** Per-start record of a multi-start fit. */
@@ -29,8 +33,10 @@ export interface FitStarts {
   readonly initial: Matrix;
   /** Natural-scale end points, starts × k. */
   readonly estimates: Matrix;
-  /** Final NLL of each start (Infinity when the start could not be evaluated). */
+  /** NLL at each start's end point (Infinity when the start could not be evaluated). */
   readonly nll: Float64Array;
+  /** Minimised objective at each start's end point: the NLL, minus the log prior for MAP fits. */
+  readonly objective: Float64Array;
   readonly iterations: Int32Array;
   /** 1 when the start met the gradient tolerance. */
   readonly converged: Uint8Array;
@@ -41,9 +47,17 @@ export interface FitStarts {
 /** Core fit result (the public `ChoiceModelFit` adds bookkeeping). Arrays follow `paramNames`. */
 export interface CoreFit {
   readonly paramNames: readonly ChoiceParamName[];
-  /** Maximum-likelihood estimates on the natural scale. */
+  /** 'maximum-likelihood', or 'maximum-a-posteriori' when any parameter has a prior. */
+  readonly estimator: 'maximum-likelihood' | 'maximum-a-posteriori';
+  /** Prior of each parameter (null = flat), in `paramNames` order. */
+  readonly priors: readonly (ParamPrior | null)[];
+  /** Maximum-likelihood (or MAP) estimates on the natural scale. */
   readonly estimates: Float64Array;
-  /** Standard errors on the natural scale (delta method); NaN at a bound or when the Hessian is not positive definite. */
+  /**
+   * Standard errors on the natural scale (delta method) from the Hessian of the minimised objective:
+   * the NLL (ML), or the negative log posterior (MAP: posterior SDs of a Laplace approximation).
+   * NaN at a bound or when the Hessian is not positive definite.
+   */
   readonly se: Float64Array;
   /** Standard errors on the transformed (optimisation) scale. */
   readonly seTransformed: Float64Array;
@@ -53,20 +67,24 @@ export interface CoreFit {
   readonly covariance: Matrix;
   /** 1 where the estimate is at a bound (or diverging). */
   readonly atBound: Uint8Array;
-  /** State of the Hessian of the NLL at the optimum (over the parameters not at a bound). */
+  /** State of the Hessian of the minimised objective at the optimum (over the parameters not at a bound). */
   readonly hessian: 'positive-definite' | 'not-positive-definite' | 'none';
-  /** Minimum negative log-likelihood (natural log). */
+  /** Negative log-likelihood (natural log) at the estimates: the minimum for ML; at the posterior mode for MAP. */
   readonly nll: number;
+  /** Σ log prior density at the estimates (natural scale, over parameters with a prior); 0 for ML. */
+  readonly logPrior: number;
+  /** The minimised value: nll − logPrior. */
+  readonly objective: number;
   /** Number of free parameters. */
   readonly k: number;
   /** Number of modelled choices (trials with a choice). */
   readonly n: number;
-  /** 2k + 2·NLL. */
+  /** 2k + 2·NLL (the likelihood only, also for MAP fits). */
   readonly aic: number;
-  /** k·ln n + 2·NLL. */
+  /** k·ln n + 2·NLL (the likelihood only, also for MAP fits). */
   readonly bic: number;
   readonly nStarts: number;
-  /** Starts whose NLL is within `bestTolerance` of the best. */
+  /** Starts whose objective is within `bestTolerance` of the best. */
   readonly nAtBest: number;
   /** The best start met the gradient tolerance. */
   readonly converged: boolean;
@@ -100,10 +118,21 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
   const transforms = settings.bounds.map(([lo, hi]) => transformFor(lo, hi));
   const theta = new Float64Array(k);
   const gTheta = new Float64Array(k);
+  const priors = settings.priors;
+  const map = priors.some((p) => p !== null);
+  const slope = new Float64Array(k);
+  // ML: NLL(θ(φ)). MAP: NLL(θ(φ)) − Σ log p(θ_j(φ_j)), the prior a density on the natural scale
+  // (so the mode does not depend on the optimisation transform).
   const objective = (phi: Float64Array, g: Float64Array): number => {
     for (let j = 0; j < k; j++) theta[j] = toNatural(transforms[j]!, phi[j]!);
-    const f = engine.nll(d, theta, gTheta, null);
+    let f = engine.nll(d, theta, gTheta, null);
     if (!Number.isFinite(f)) return Infinity;
+    if (map) {
+      slope.fill(0);
+      f -= logPriorSum(priors, theta, slope);
+      if (!Number.isFinite(f)) return Infinity;
+      for (let j = 0; j < k; j++) gTheta[j] = gTheta[j]! - slope[j]!;
+    }
     for (let j = 0; j < k; j++) g[j] = gTheta[j]! * jacobian(transforms[j]!, phi[j]!);
     return f;
   };
@@ -112,6 +141,7 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
   const initial = new Float64Array(nStarts * k);
   const ends = new Float64Array(nStarts * k);
   const nllStarts = new Float64Array(nStarts);
+  const objStarts = new Float64Array(nStarts);
   const iterations = new Int32Array(nStarts);
   const converged = new Uint8Array(nStarts);
   const stops: BfgsStop[] = [];
@@ -127,11 +157,16 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
     }
     const out = bfgs(objective, phi0, { gtol: settings.gradientTolerance, maxIterations: settings.maxIterations, maxStep: 5 });
     for (let j = 0; j < k; j++) ends[s * k + j] = toNatural(transforms[j]!, out.x[j]!);
-    nllStarts[s] = Number.isFinite(out.f) ? out.f : Infinity;
+    objStarts[s] = Number.isFinite(out.f) ? out.f : Infinity;
+    nllStarts[s] = objStarts[s]!;
+    if (map && Number.isFinite(out.f)) {
+      for (let j = 0; j < k; j++) theta[j] = ends[s * k + j]!;
+      nllStarts[s] = engine.nll(d, theta, null, null);
+    }
     iterations[s] = out.iterations;
     converged[s] = out.converged ? 1 : 0;
     stops.push(out.stop);
-    if (Number.isFinite(out.f) && (best < 0 || out.f < nllStarts[best]!)) {
+    if (Number.isFinite(out.f) && (best < 0 || out.f < objStarts[best]!)) {
       best = s;
       bestPhi = out.x;
     }
@@ -146,8 +181,9 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
     throw new TuningforkError('TF_BAD_LIKELIHOOD', `${fn}: the log-likelihood of model '${m.name}' is not finite at ${w.text} from every start (choice ${d.choice[row]}, outcome ${d.reward[row]}); check the outcome scale (|reward| very large?) and the parameter bounds.`, { fn, session: w.session, row: w.row, trial: w.trial });
   }
   const nll = nllStarts[best]!;
+  const objectiveBest = objStarts[best]!;
   let nAtBest = 0;
-  for (let s = 0; s < nStarts; s++) if (nllStarts[s]! <= nll + settings.bestTolerance) nAtBest++;
+  for (let s = 0; s < nStarts; s++) if (objStarts[s]! <= objectiveBest + settings.bestTolerance) nAtBest++;
   const estimates = new Float64Array(k);
   for (let j = 0; j < k; j++) estimates[j] = toNatural(transforms[j]!, bestPhi[j]!);
   const bound = new Uint8Array(k);
@@ -190,7 +226,7 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
       hessian = 'not-positive-definite';
       warnings.push({
         code: 'hessian-not-positive-definite',
-        message: `${fn}: the Hessian of the NLL at the best fit of model '${m.name}' is not positive definite: the parameters (${free.map((j) => m.params[j]).join(', ')}) are not identifiable from these data; standard errors are NaN.`,
+        message: `${fn}: the Hessian of the ${map ? 'negative log posterior' : 'NLL'} at the best fit of model '${m.name}' is not positive definite: the parameters (${free.map((j) => m.params[j]).join(', ')}) are not identifiable from these data; standard errors are NaN.`,
         details: { params: free.map((j) => m.params[j]) },
       });
     } else {
@@ -238,12 +274,14 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
   if (nStarts > 1 && nAtBest === 1) {
     warnings.push({
       code: 'single-start-at-best',
-      message: `${fn}: only 1 of ${nStarts} starts reached the best NLL (within ${settings.bestTolerance}); the likelihood may have several local optima — consider more starts.`,
+      message: `${fn}: only 1 of ${nStarts} starts reached the best ${map ? 'posterior' : 'NLL'} (within ${settings.bestTolerance}); the ${map ? 'posterior' : 'likelihood'} may have several local optima — consider more starts.`,
       details: { nStarts },
     });
   }
   return {
     paramNames: m.params,
+    estimator: map ? 'maximum-a-posteriori' : 'maximum-likelihood',
+    priors,
     estimates,
     se,
     seTransformed: seT,
@@ -253,6 +291,8 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
     atBound: bound,
     hessian,
     nll,
+    logPrior: map ? logPriorSum(priors, estimates, null) : 0,
+    objective: objectiveBest,
     k,
     n,
     aic: 2 * k + 2 * nll,
@@ -264,6 +304,7 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
       initial: { data: initial, rows: nStarts, cols: k },
       estimates: { data: ends, rows: nStarts, cols: k },
       nll: nllStarts,
+      objective: objStarts,
       iterations,
       converged,
       stop: stops,

@@ -3,6 +3,7 @@ import { TuningforkError, checkInteger, checkPositive, formatValue } from '@tuni
 import type { ChoiceParamName, ModelStructure } from '../choice/model.js';
 import { DEFAULT_BOUNDS, PARAM_DOMAIN, START_RANGES } from '../choice/model.js';
 import type { FitSettings } from './fit-core.js';
+import { resolvePriors } from './priors.js';
 
 export type ParamRanges = Readonly<Partial<Record<ChoiceParamName, readonly [number, number]>>>;
 
@@ -36,6 +37,7 @@ export interface FitSettingOptions {
   readonly bestTolerance: unknown;
   readonly hessianStep: unknown;
   readonly boundTolerance: unknown;
+  readonly priors: unknown;
 }
 
 /** Resolve and validate the fitting settings of model `m`. @throws TF_BAD_OPTION, TF_UNKNOWN_OPTION */
@@ -68,5 +70,6 @@ export function resolveFitSettings(fn: string, m: ModelStructure, o: FitSettingO
     bestTolerance: checkPositive(fn, 'bestTolerance', o.bestTolerance),
     hessianStep: checkPositive(fn, 'hessianStep', o.hessianStep),
     boundTolerance: checkPositive(fn, 'boundTolerance', o.boundTolerance),
+    priors: resolvePriors(fn, m, o.priors),
   };
 }

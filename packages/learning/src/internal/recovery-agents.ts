@@ -4,7 +4,8 @@
 import { rng } from '@tuningfork/core';
 import type { Matrix } from '@tuningfork/core';
 import type { PreparedChoices } from '../choice/data.js';
-import type { ModelStructure } from '../choice/model.js';
+import type { ChoiceParamName, ModelStructure } from '../choice/model.js';
+import { PARAM_DOMAIN } from '../choice/model.js';
 import { ChoiceEngine, compileModel } from './choice-engine.js';
 import { fitPrepared } from './fit-core.js';
 import type { FitSettings } from './fit-core.js';
@@ -21,6 +22,8 @@ export interface RecoveryTask {
   /** Generating models and the [lo, hi] draw range of each of their parameters. */
   readonly generators: readonly ModelStructure[];
   readonly ranges: readonly (readonly (readonly [number, number])[])[];
+  /** 'natural': uniform in each range; 'unbounded': uniform on logit θ (rates), log θ (β), θ (β_C). */
+  readonly drawScale: 'natural' | 'unbounded';
   /** Agents per generator: agent i uses generator floor(i / agentsPerGenerator). */
   readonly agentsPerGenerator: number;
   /** Candidate models fitted to every agent, with their settings. */
@@ -46,6 +49,18 @@ export interface AgentResult {
   readonly fits: readonly AgentFit[];
 }
 
+/** A value uniform on the unbounded scale of `name` between lo and hi (u ∈ [0, 1)). */
+export function drawUnbounded(name: ChoiceParamName, lo: number, hi: number, u: number): number {
+  const [dlo, dhi] = PARAM_DOMAIN[name];
+  if (dlo === 0 && dhi === 1) {
+    const a = Math.log(lo / (1 - lo));
+    const b = Math.log(hi / (1 - hi));
+    return 1 / (1 + Math.exp(-(a + u * (b - a))));
+  }
+  if (dlo === 0) return Math.exp(Math.log(lo) + u * (Math.log(hi) - Math.log(lo)));
+  return lo + u * (hi - lo);
+}
+
 export function runAgent(task: RecoveryTask, agent: number): AgentResult {
   const root = rng(task.seed).stream(agent);
   const generator = Math.floor(agent / task.agentsPerGenerator);
@@ -55,7 +70,8 @@ export function runAgent(task: RecoveryTask, agent: number): AgentResult {
   const truth = new Float64Array(gm.params.length);
   for (let j = 0; j < truth.length; j++) {
     const [lo, hi] = ranges[j]!;
-    truth[j] = lo + (hi - lo) * draw.uniform();
+    const u = draw.uniform();
+    truth[j] = task.drawScale === 'unbounded' ? drawUnbounded(gm.params[j]!, lo, hi, u) : lo + (hi - lo) * u;
   }
   const schedule = task.schedule ?? buildReversal(task.nTrials, task.rewardProbs, task.blockTrials, 'random', root.stream(1)).schedule;
   const n = schedule.rows;

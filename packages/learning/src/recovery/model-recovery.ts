@@ -1,6 +1,7 @@
 import { TuningforkError, checkInteger, checkOneOf, resolveOptions } from '@tuningfork/core';
 import type { Matrix, ResultWarning } from '@tuningfork/core';
 import { resolveModel } from '../choice/model.js';
+import type { ChoicePriors } from '../choice/priors.js';
 import type { ChoiceModel, ChoiceParamName } from '../choice/model.js';
 import { resolveFitSettings } from '../internal/fit-settings.js';
 import { runAgents } from '../internal/recovery-runner.js';
@@ -30,6 +31,11 @@ export interface ModelRecoveryOptions {
   starts?: number;
   /** Fitting bounds (see fitChoiceModel). @defaultValue {} */
   bounds?: Ranges;
+  /**
+   * Priors of the refits (see fitChoiceModel): 'none' (maximum likelihood), 'weakly-informative'
+   * or a prior per parameter. @defaultValue 'none'
+   */
+  priors?: ChoicePriors;
   /** Seed: agent i draws everything from `rng(seed).stream(i)`. @defaultValue 0 */
   seed?: number;
   /** Worker threads (1 = this thread). Results do not depend on it. @defaultValue 1 */
@@ -47,6 +53,7 @@ const DEFAULTS = Object.freeze({
   blockTrials: [30, 60] as readonly [number, number],
   starts: 10,
   bounds: Object.freeze({}) as Ranges,
+  priors: 'none' as ChoicePriors,
   seed: 0,
   workers: 1,
 });
@@ -118,6 +125,7 @@ export async function modelRecovery(options: ModelRecoveryOptions = {}): Promise
       bestTolerance: 1e-6,
       hessianStep: 1e-5,
       boundTolerance: 1e-4,
+      priors: o.priors,
     }),
   );
   const task = {
@@ -128,6 +136,7 @@ export async function modelRecovery(options: ModelRecoveryOptions = {}): Promise
     blockTrials: blocks,
     generators: models,
     ranges: models.map((m) => drawRanges(fn, m, o.ranges)),
+    drawScale: 'natural' as const,
     agentsPerGenerator: per,
     candidates: models,
     settings,
