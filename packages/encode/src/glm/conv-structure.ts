@@ -1,6 +1,6 @@
 /**
  * Internal: the linear predictor Xβ and the score Xᵀr of a design through its convolution
- * structure. An event term's columns are x_j(t) = Σ_e w_e·h_j(t − b_e − lagStart), so
+ * structure (plus a dense block for covariate columns that are non-zero on most rows). An event term's columns are x_j(t) = Σ_e w_e·h_j(t − b_e − lagStart), so
  *   (Xβ)(t) = Σ_e w_e·K(t − b_e − lagStart),  K(i) = Σ_j h_j(i)·β_j            (#events × #lags)
  *   (Xᵀr)_j = Σ_i h_j(i)·C(i),                C(i) = Σ_e w_e·r(b_e + lagStart + i)
  * instead of one multiply-add per stored non-zero (the raised cosines overlap, so a CSR row of an
@@ -23,9 +23,18 @@ export interface ConvTerm {
   readonly weights: Float64Array;
 }
 
-/** Convolution terms, the residual CSR of all other columns, and scratch arrays (length n). */
+/** Columns stored densely: covariates non-zero on most rows. */
+export interface DenseBlock {
+  /** Problem column index of each dense column. */
+  readonly cols: Int32Array;
+  /** Values per column (each of length n). */
+  readonly columns: readonly Float64Array[];
+}
+
+/** Convolution terms, dense covariate columns, the residual CSR of all other columns, and scratch arrays (length n). */
 export interface ConvStructure {
   readonly terms: readonly ConvTerm[];
+  readonly dense: DenseBlock | null;
   readonly rowPtr: Int32Array;
   readonly colIdx: Int32Array;
   readonly values: Float64Array;
@@ -36,11 +45,13 @@ export interface ConvStructure {
   readonly k: Float64Array;
 }
 
-/** Xβ of the convolution terms into s.xb (all rows; beta[0] is the intercept and is not added). */
-export function convPredict(s: ConvStructure, beta: Float64Array): void {
+/**
+ * Xβ of the convolution terms and dense columns into s.xb on rows [lo, hi) (other rows are left
+ * as they are; beta[0] is the intercept and is not added).
+ */
+export function convPredict(s: ConvStructure, beta: Float64Array, lo = 0, hi = s.xb.length): void {
   const { xb, k } = s;
-  const n = xb.length;
-  xb.fill(0);
+  xb.fill(0, lo, hi);
   for (const t of s.terms) {
     const { first, m, nLags, lagStart, kernels, bins, weights } = t;
     for (let i = 0; i < nLags; i++) {
@@ -51,32 +62,51 @@ export function convPredict(s: ConvStructure, beta: Float64Array): void {
     }
     for (let e = 0; e < bins.length; e++) {
       const t0 = bins[e]! + lagStart;
+      const i0 = t0 < lo ? lo - t0 : 0;
+      const i1 = t0 + nLags > hi ? hi - t0 : nLags;
       const w = weights[e]!;
-      const i0 = t0 < 0 ? -t0 : 0;
-      const i1 = t0 + nLags > n ? n - t0 : nLags;
       for (let i = i0; i < i1; i++) xb[t0 + i] = xb[t0 + i]! + w * k[i]!;
+    }
+  }
+  const D = s.dense;
+  if (D) {
+    for (let c = 0; c < D.cols.length; c++) {
+      const b = beta[D.cols[c]! + 1]!;
+      const v = D.columns[c]!;
+      for (let t = lo; t < hi; t++) xb[t] = xb[t]! + v[t]! * b;
     }
   }
 }
 
-/** Add Xᵀr of the convolution terms (r in s.r, zero on rows not to be counted) to g[first + j + 1]. */
-export function convScore(s: ConvStructure, g: Float64Array): void {
+/**
+ * Add Xᵀr of the convolution terms and dense columns to g (r in s.r on rows [lo, hi), zero there
+ * on rows not to be counted; rows outside [lo, hi) are not read).
+ */
+export function convScore(s: ConvStructure, g: Float64Array, lo = 0, hi = s.r.length): void {
   const { r, k } = s;
-  const n = r.length;
   for (const t of s.terms) {
     const { first, m, nLags, lagStart, kernels, bins, weights } = t;
     k.fill(0, 0, nLags);
     for (let e = 0; e < bins.length; e++) {
       const t0 = bins[e]! + lagStart;
+      const i0 = t0 < lo ? lo - t0 : 0;
+      const i1 = t0 + nLags > hi ? hi - t0 : nLags;
       const w = weights[e]!;
-      const i0 = t0 < 0 ? -t0 : 0;
-      const i1 = t0 + nLags > n ? n - t0 : nLags;
       for (let i = i0; i < i1; i++) k[i] = k[i]! + w * r[t0 + i]!;
     }
     for (let j = 0; j < m; j++) {
       let acc = 0;
       for (let i = 0; i < nLags; i++) acc += kernels[i * m + j]! * k[i]!;
       g[first + j + 1] = g[first + j + 1]! + acc;
+    }
+  }
+  const D = s.dense;
+  if (D) {
+    for (let c = 0; c < D.cols.length; c++) {
+      const v = D.columns[c]!;
+      let acc = 0;
+      for (let t = lo; t < hi; t++) acc += r[t]! * v[t]!;
+      g[D.cols[c]! + 1] = g[D.cols[c]! + 1]! + acc;
     }
   }
 }
@@ -131,12 +161,33 @@ function build(design: EncodingDesign, cols: Int32Array | null, sub: EncodingDes
     maxLags = Math.max(maxLags, t.nLags);
   }
   if (terms.length === 0) return null;
+  // Residual columns non-zero on at least half of the rows (lagged covariates) are stored densely:
+  // a dense multiply-add needs no index load.
+  const denseAt = new Int32Array(p).fill(-1);
+  const denseCols: number[] = [];
+  for (let j = 0; j < p; j++) {
+    if (newIdx[j]! >= 0 && !conv[j] && colNnz[j]! >= n / 2) {
+      denseAt[j] = denseCols.length;
+      denseCols.push(j);
+    }
+  }
+  let dense: DenseBlock | null = null;
+  if (denseCols.length > 0) {
+    const columns = denseCols.map(() => new Float64Array(n));
+    for (let t = 0; t < n; t++) {
+      for (let k = design.rowPtr[t]!; k < design.rowPtr[t + 1]!; k++) {
+        const c = denseAt[design.colIdx[k]!]!;
+        if (c >= 0) columns[c]![t] = design.values[k]!;
+      }
+    }
+    dense = { cols: Int32Array.from(denseCols, (j) => newIdx[j]!), columns };
+  }
   const rowPtr = new Int32Array(n + 1);
   let cnt = 0;
   for (let t = 0; t < n; t++) {
     for (let k = design.rowPtr[t]!; k < design.rowPtr[t + 1]!; k++) {
       const j = design.colIdx[k]!;
-      if (newIdx[j]! >= 0 && !conv[j]) cnt++;
+      if (newIdx[j]! >= 0 && !conv[j] && denseAt[j]! < 0) cnt++;
     }
     rowPtr[t + 1] = cnt;
   }
@@ -146,14 +197,14 @@ function build(design: EncodingDesign, cols: Int32Array | null, sub: EncodingDes
   for (let t = 0; t < n; t++) {
     for (let k = design.rowPtr[t]!; k < design.rowPtr[t + 1]!; k++) {
       const j = design.colIdx[k]!;
-      if (newIdx[j]! >= 0 && !conv[j]) {
+      if (newIdx[j]! >= 0 && !conv[j] && denseAt[j]! < 0) {
         colIdx[cnt] = newIdx[j]!;
         values[cnt] = design.values[k]!;
         cnt++;
       }
     }
   }
-  const s: ConvStructure = { terms, rowPtr, colIdx, values, xb: new Float64Array(n), r: new Float64Array(n), k: new Float64Array(maxLags) };
+  const s: ConvStructure = { terms, dense, rowPtr, colIdx, values, xb: new Float64Array(n), r: new Float64Array(n), k: new Float64Array(maxLags) };
   return agrees(s, sub) ? s : null;
 }
 

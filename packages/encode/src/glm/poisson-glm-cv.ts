@@ -86,15 +86,21 @@ const DEFAULTS = Object.freeze({
  * log μ_t = β₀ + x_tᵀβ + log Δt (Δt = 1/binRate, so e^β₀ is a rate in Hz). Each unit is fitted on
  * all rows by IRLS (INFERENCE.md §4.5; the working Hessian uses every k-th row, k ≈ n/30000,
  * which keeps Newton-like convergence at a fraction of the cost; the objective and gradient are
- * always exact). Every fold's training rows (rows farther than `gapSec` from the test block)
- * then start from one Newton step off the full-data solution, with the exact full-data Hessian
- * minus that of the excluded rows, and iterate with that Hessian kept (modified Newton; full
- * IRLS if it stalls). With a kept or row-sampled Hessian convergence is linear, so the stopping
- * rule is a relative change of the penalised deviance below tol/100; with the default tol this
- * gives cvDevianceExplained to ~1e-6 absolute. `foldFits: 'newton-step'` stops after the first
- * step (approximate CV). Xβ and the score Xᵀr of event terms are computed through the kernels'
- * convolution structure (per term: #events × #lags multiply-adds; equal to the sparse-row products
- * up to rounding), the weighted Grams from the sparse rows. Units are independent and are fitted on
+ * always exact; with a row-sampled Hessian convergence is linear, so the stopping rule is a
+ * relative change of the penalised deviance below tol/100). Every fold's training rows (rows
+ * farther than `gapSec` from the test block) then start from one Newton step off the full-data
+ * solution, with the exact full-data Hessian minus that of the excluded rows; a second, verified
+ * step with that Hessian follows, then Newton steps with the training Hessian at the iterate
+ * (every k-th row) until the Newton decrement gᵀH⁻¹g is below tol relative, that last step being
+ * taken without evaluation (Boyd & Vandenberghe 2004, §9.5). On simulated 60-minute units
+ * (180,000 bins, 80 columns) cvDevianceExplained then agrees with folds fitted to tol 1e-13 to
+ * ~1e-7 absolute. `foldFits: 'newton-step'` stops after the first step (approximate CV; ~4e-6
+ * absolute on those units, 5 % relative on a 600-bin problem). Xβ and the score Xᵀr of event
+ * terms are computed through the kernels' convolution structure (per term: #events × #lags
+ * multiply-adds, restricted to the rows in use; equal to the sparse-row products up to
+ * rounding), covariates non-zero on most rows as dense columns, and the weighted Grams from the
+ * sparse rows in a WebAssembly kernel (bit-identical to the JavaScript loop, which is the
+ * fallback). Units are independent and are fitted on
  * `threads` threads (worker threads, synchronously joined). Test deviance is compared with the training-mean rate:
  * cvDevianceExplained = 1 − ΣD_test/ΣD_test,const, bitsPerSpike = (ΣD_test,const − ΣD_test)/(2·n_spikes·ln 2)
  * (INFERENCE.md §4.3). The penalty applies to coefficients of columns scaled to unit SD on the

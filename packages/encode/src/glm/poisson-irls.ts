@@ -112,6 +112,18 @@ function evaluate(prob: PoissonProblem, ranges: RowRanges, beta: Float64Array, p
   return obj;
 }
 
+/** The smallest [lo, hi) covering all row ranges (empty ranges: [0, 0)). */
+function span(ranges: RowRanges): [number, number] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let q = 0; q < ranges.length; q += 2) {
+    if (ranges[q + 1]! <= ranges[q]!) continue;
+    lo = Math.min(lo, ranges[q]!);
+    hi = Math.max(hi, ranges[q + 1]!);
+  }
+  return lo < hi ? [lo, hi] : [0, 0];
+}
+
 /** {@link evaluate} with Xβ and Xᵀr through the convolution structure. */
 function evaluateStructured(prob: PoissonProblem, s: ConvStructure, ranges: RowRanges, beta: Float64Array, pen: Float64Array, eta: Float64Array, mu: Float64Array, g: Float64Array | null): number {
   const { y, rowValid } = prob;
@@ -120,14 +132,44 @@ function evaluateStructured(prob: PoissonProblem, s: ConvStructure, ranges: RowR
   const scalar = typeof prob.offset === 'number';
   const off0 = scalar ? (prob.offset as number) : 0;
   const offs = scalar ? null : (prob.offset as Float64Array);
-  convPredict(s, beta);
+  const [lo, hi] = span(ranges);
+  convPredict(s, beta, lo, hi);
   let obj = 0;
   let g0 = 0;
   if (g) {
     g.fill(0);
-    r.fill(0);
+    r.fill(0, lo, hi);
   }
-  for (let q = 0; q < ranges.length; q += 2) {
+  if (values.length === 0 && scalar && !rowValid) {
+    // Every column is in the structure and no row is masked: η = β₀ + offset + (Xβ)_t.
+    const base = b0 + off0;
+    for (let q = 0; q < ranges.length; q += 2) {
+      const t1 = ranges[q + 1]!;
+      if (g) {
+        for (let t = ranges[q]!; t < t1; t++) {
+          let e = base + xb[t]!;
+          e = e > ETA_CAP ? ETA_CAP : e < -ETA_CAP ? -ETA_CAP : e;
+          const m = Math.exp(e);
+          eta[t] = e;
+          mu[t] = m;
+          const yt = y[t]!;
+          obj += m - yt * e;
+          const rt = yt - m;
+          r[t] = rt;
+          g0 += rt;
+        }
+      } else {
+        for (let t = ranges[q]!; t < t1; t++) {
+          let e = base + xb[t]!;
+          e = e > ETA_CAP ? ETA_CAP : e < -ETA_CAP ? -ETA_CAP : e;
+          const m = Math.exp(e);
+          eta[t] = e;
+          mu[t] = m;
+          obj += m - y[t]! * e;
+        }
+      }
+    }
+  } else for (let q = 0; q < ranges.length; q += 2) {
     for (let t = ranges[q]!; t < ranges[q + 1]!; t++) {
       const k0 = rowPtr[t]!;
       const k1 = rowPtr[t + 1]!;
@@ -153,7 +195,7 @@ function evaluateStructured(prob: PoissonProblem, s: ConvStructure, ranges: RowR
   }
   for (let j = 0; j < pen.length; j++) obj += 0.5 * pen[j]! * beta[j + 1]! * beta[j + 1]!;
   if (g) {
-    convScore(s, g);
+    convScore(s, g, lo, hi);
     g[0] = g0;
     for (let j = 0; j < pen.length; j++) g[j + 1] = g[j + 1]! - pen[j]! * beta[j + 1]!;
   }
@@ -221,11 +263,12 @@ export interface IrlsOptions {
   /** Rows used for the working Hessian: every stride-th (weights × stride); 1 = all. @defaultValue 1 */
   readonly hessianStride?: number;
   /**
-   * Newton-decrement stop: in an iteration whose Hessian is exact at the iterate (computed there
-   * from every row, not kept), if the decrease of the penalised deviance the quadratic model
-   * predicts, gᵀH⁻¹g, is below `tol` relative, take that Newton step without evaluating it and
-   * stop: near the optimum Newton converges quadratically, so the step leaves a gap of the order
-   * of the square of the decrement (Boyd & Vandenberghe 2004, Convex Optimization, §9.5). `eta`,
+   * Newton-decrement stop: in an iteration whose Hessian was computed at the iterate (from every
+   * row or every stride-th row, not kept), if the decrease of the penalised deviance the quadratic
+   * model predicts, gᵀH⁻¹g, is below `tol` relative, take that Newton step without evaluating it
+   * and stop: near the optimum the step leaves a gap of the order of the square of the decrement
+   * plus the decrement times the row-sampled Hessian's relative error (Boyd & Vandenberghe 2004,
+   * Convex Optimization, §9.5). `eta`,
    * `mu` and `objective` then refer to the iterate before that step: for callers that only need
    * the coefficients. @defaultValue false
    */
@@ -293,7 +336,7 @@ export function irls(prob: PoissonProblem, ranges: RowRanges, pen: Float64Array,
       if (it >= (opts.exactIterations ?? Infinity)) fixed = fac;
     }
     const step = choleskySolveInPlace(fac, Float64Array.from(g));
-    if (opts.newtonFinish && fac !== fixed && stride === 1) {
+    if (opts.newtonFinish && fac !== fixed) {
       let decrement = 0;
       for (let j = 0; j < q1; j++) decrement += g[j]! * step[j]!;
       if (decrement / (Math.abs(2 * obj + devConst) + 0.1) < opts.tol) {
@@ -361,7 +404,8 @@ export function scoreOn(prob: PoissonProblem, ranges: RowRanges, mu: Float64Arra
   const s = prob.structure;
   const { y, rowValid } = prob;
   const { rowPtr, colIdx, values } = s ?? prob;
-  if (s) s.r.fill(0);
+  const [lo, hi] = span(ranges);
+  if (s) s.r.fill(0, lo, hi);
   const g = new Float64Array(prob.p + 1);
   let ySum = 0;
   let nRows = 0;
@@ -379,6 +423,6 @@ export function scoreOn(prob: PoissonProblem, ranges: RowRanges, mu: Float64Arra
       }
     }
   }
-  if (s) convScore(s, g);
+  if (s) convScore(s, g, lo, hi);
   return { g, ySum, nRows };
 }

@@ -172,9 +172,10 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
       const nTr = fullScore.nRows - sEx.nRows;
       if (foldFits === 'exact') {
         // From the one-step estimate: one more step with the Hessian at β̂ (close, and already
-        // there), then Newton with the exact training Hessian at each iterate, which near the
-        // optimum usually has a decrement below tol and is the last (taken without evaluation).
-        const fr = irls(prob, train, pen, { tol, maxIterations: maxIt, start: betaF, fixedHessian: hFix, fixedIterations: 1, wantHessian: false, newtonFinish: true, wantDeviance: false }, eta, mu);
+        // there), then Newton with the training Hessian at each iterate (from every stride-th row,
+        // as the full fit), whose step near the optimum has a decrement below tol and is the last
+        // (taken without evaluation).
+        const fr = irls(prob, train, pen, { tol, maxIterations: maxIt, start: betaF, fixedHessian: hFix, fixedIterations: 1, hessianStride: stride, wantHessian: false, newtonFinish: true, wantDeviance: false }, eta, mu);
         itTot += fr.iterations;
         conv = conv && fr.converged;
         betaF = fr.beta;
