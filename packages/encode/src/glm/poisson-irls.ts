@@ -204,7 +204,11 @@ function evaluateStructured(prob: PoissonProblem, s: ConvStructure, ranges: RowR
 
 /** Weighted Gram XᵀWX (with intercept) over ranges into h ((p+1)², full), without penalty. */
 export function weightedGram(prob: PoissonProblem, ranges: RowRanges, muArr: Float64Array, h: Float64Array, stride = 1): void {
-  if (gramWasm(prob, ranges, muArr, prob.rowValid, h, stride)) return;
+  if (!gramWasm(prob, ranges, muArr, prob.rowValid, h, stride)) weightedGramJs(prob, ranges, muArr, h, stride);
+}
+
+/** The JavaScript loop of {@link weightedGram} (the fallback without WebAssembly; same bits). */
+export function weightedGramJs(prob: PoissonProblem, ranges: RowRanges, muArr: Float64Array, h: Float64Array, stride = 1): void {
   const { rowPtr, colIdx, values, rowValid } = prob;
   const q1 = prob.p + 1;
   for (let q = 0; q < ranges.length; q += 2) {
