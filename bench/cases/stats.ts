@@ -9,7 +9,7 @@
 // 97.5], axis=0) for each site and event type) on random data of the same shape; the shape is
 // taken from the simulated 60-minute session (reward and move_onset events whose −2 … +5 s
 // window fits, 7001 columns at 1 kHz, 4 sites). Both sides use their defaults for threads
-// (numpy: OpenBLAS on all cores; ours: `threads: 2`). The machine is shared, so the notes also
+// (numpy: OpenBLAS on all cores; ours: `threads: 0`, one per core). The machine is shared, so the notes also
 // give the CPU time of each side (all threads of the process), which load disturbs less.
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';

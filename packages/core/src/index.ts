@@ -23,6 +23,7 @@ export { zerosMatrix, asMatrix, matrixRow } from './matrix.js';
 
 // Provenance
 export { VERSION } from './version.js';
+export { threadBudget } from './threads.js';
 // Low-level: a minimal WebAssembly assembler for numeric kernels (used by stats and encode).
 export { wasmApi, WASM_PAGE, uleb, sleb, I32, F64, V128, op, whileLoop, ifElse, kernelModule, compileKernel } from './wasm.js';
 export type { WasmMemory, WasmModule, WasmInstance, KernelSpec } from './wasm.js';

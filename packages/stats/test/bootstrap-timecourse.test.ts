@@ -156,7 +156,7 @@ describe('bootstrapTimecourse', () => {
     expect(() => bootstrapTimecourse(noisy(3, 2, 1), { method: 'bac' as 'bca' })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
     expect(() => bootstrapTimecourse(noisy(3, 2, 1), { resampels: 5 } as object)).toThrow(expect.objectContaining({ code: 'TF_UNKNOWN_OPTION' }));
     expect(() => bootstrapTimecourse(noisy(3, 2, 1), { statistic: 'median' as 'mean' })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
-    expect(() => bootstrapTimecourse(noisy(3, 2, 1), { threads: 0 })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
+    expect(() => bootstrapTimecourse(noisy(3, 2, 1), { threads: -1 })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
     expect(() => bootstrapTimecourse(noisy(3, 2, 1), { threads: 1.5 })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
   });
 });

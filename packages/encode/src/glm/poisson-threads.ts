@@ -6,12 +6,11 @@
 // deterministic and independent of the others, so results are identical for any thread count.
 import { existsSync, readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import { availableParallelism } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { MessageChannel, Worker, receiveMessageOnPort } from 'node:worker_threads';
 import type { MessagePort } from 'node:worker_threads';
-import { TuningforkError } from '@tuningfork/core';
+import { TuningforkError, threadBudget } from '@tuningfork/core';
 import type { ErrorCode, ResultWarning } from '@tuningfork/core';
 import { fitUnit, unitCounts } from './poisson-unit.js';
 import type { GlmContext, UnitInput } from './poisson-unit.js';
@@ -103,10 +102,9 @@ function collect(r: Running): PoissonCellFit[] | null {
 export function runUnits(ctx: GlmContext, units: readonly UnitInput[], threads: number): { cells: PoissonCellFit[]; warnings: ResultWarning[] } {
   const U = units.length;
   const nnz = ctx.design.rowPtr[ctx.design.nRows]!;
-  // Auto: one thread per core, or the per-process budget a parent set in TUNINGFORK_THREADS
-  // (the cli gives each of its session workers cores / jobs). Thread count never changes results.
-  const budget = Number(process.env.TUNINGFORK_THREADS);
-  const auto = Number.isInteger(budget) && budget >= 1 ? Math.min(budget, availableParallelism()) : availableParallelism();
+  // Auto: core's threadBudget (cores, or the budget a parent process set). Thread count never
+  // changes results.
+  const auto = threadBudget();
   let w = threads > 0 ? threads : nnz * U >= AUTO_MIN_WORK ? auto : 1;
   w = Math.max(1, Math.min(w, U));
   if (w === 1) return { cells: units.map((u, ui) => fitUnit(ctx, u, ui)), warnings: [] };

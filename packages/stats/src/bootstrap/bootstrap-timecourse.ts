@@ -1,4 +1,4 @@
-import { checkBoolean, checkInteger, checkOneOf, resolveOptions, rng, TuningforkError } from '@tuningfork/core';
+import { checkBoolean, checkInteger, checkOneOf, resolveOptions, rng, threadBudget, TuningforkError } from '@tuningfork/core';
 import type { Matrix, ResultWarning } from '@tuningfork/core';
 import { multinomialPlan } from '../internal/count-plan.js';
 import { MEAN_SPEC, prepareCondition, runTimecourse } from '../internal/timecourse-engine.js';
@@ -43,11 +43,11 @@ export interface BootstrapTimecourseOptions {
   /** Return the B × T replicate matrix (memory: 8·B·T bytes). @defaultValue false */
   keepReplicates?: boolean;
   /**
-   * Threads computing the resample product for large inputs (the calling thread included;
-   * capped at the machine's available parallelism; 1 = calling thread only). Extra threads are
-   * worker threads started once per process; results do not depend on this number. The default
-   * stays 1 until the gain is measured on an unloaded machine (on a shared one it was nil).
-   * @defaultValue 1
+   * Threads computing the resample product for large inputs (≥ 10⁸ table lookups, e.g. 2,000
+   * resamples of 600 trials × 700 bins), the calling thread included; capped at the machine's
+   * available parallelism; 1 = calling thread only, 0 = auto (core's threadBudget: one per core,
+   * or the budget of TUNINGFORK_THREADS). Extra threads are worker threads started once per
+   * process; results do not depend on this number. @defaultValue 0
    */
   threads?: number;
 }
@@ -88,7 +88,7 @@ const DEFAULTS = Object.freeze({
   correction: 0 as 0 | 1,
   nan: 'propagate' as NanMode,
   keepReplicates: false,
-  threads: 1,
+  threads: 0,
 });
 
 
@@ -122,7 +122,7 @@ function resolve(fn: string, options: BootstrapTimecourseOptions | undefined) {
   const correction = checkInteger(fn, 'correction', o.correction, 0, 1);
   const nan = checkOneOf(fn, 'nan', o.nan, ['propagate', 'omit', 'error'] as const);
   const keepReplicates = checkBoolean(fn, 'keepReplicates', o.keepReplicates);
-  const threads = checkInteger(fn, 'threads', o.threads, 1, 64);
+  const threads = checkInteger(fn, 'threads', o.threads, 0, 64) || threadBudget();
   const spec = specOf(fn, o.statistic, correction);
   return { method, confidenceLevel, resamples, seed, nan, keepReplicates, threads, spec };
 }

@@ -5,9 +5,10 @@
  * - 'js': `weightedBlock` (count-plan.ts) on the main thread;
  * - 'simd': the WebAssembly SIMD kernel (simd-kernel.ts) on the main thread;
  * - 'simd' with threads > 1: the same kernel on the main thread and on worker threads sharing the
- *   WebAssembly memory. Blocks are claimed from an atomic counter; a ring of output slots lets
- *   workers run ahead of the main thread (which also computes blocks while it would wait), and
- *   the main thread blocks with Atomics.wait only when the next block is in a worker's hands.
+ *   WebAssembly memory. Every thread claims blocks from one atomic counter into a ring of output
+ *   slots, so threads run ahead of the main thread's in-order consumption; the main thread
+ *   computes the next unclaimed block whenever the one it needs is not ready, and blocks with
+ *   Atomics.wait only when no block is left to claim.
  *   A block is the same function of the same inputs whichever thread computes it, so results do
  *   not depend on the number of threads or on scheduling.
  *
@@ -137,11 +138,14 @@ export function makeBlockSource(fn: string, products: readonly ProductSpec[], co
     products: wasm.map((w) => ({ memory: w.memory, args: runArgs(w, 0, 0, 0), tabPtr: w.tabPtr, slotPtr: w.slotPtr, slotBytes: w.slotBytes })),
   };
   pool.forEach((worker, i) => worker.postMessage({ ...job, thread: i + 1 }));
-  // The calling thread computes its own blocks in a private slot (index `slots`): the block it
-  // needs next when no worker has claimed it, or — when a worker holds it longer than RESCUE_MS
-  // (a worker descheduled on a loaded machine) — a second copy of it. Both copies are the same
-  // bits; the worker's late copy lands in its ring slot, which is not reused before it is written.
+  // The calling thread claims blocks from the same counter as the workers, into the same ring
+  // (so it shares the work instead of waiting for it): while the block it needs next is not
+  // ready, it computes the next unclaimed block whose ring slot is free. When a worker holds the
+  // needed block longer than RESCUE_MS (a worker descheduled on a loaded machine) it computes a
+  // second copy in a private slot (index `slots`). Both copies are the same bits; the worker's
+  // late copy lands in its ring slot, which is not reused before it is written.
   const own = slots;
+  const slotFree = (b: number, consumed: number) => b < consumed + slots && (b < slots || Atomics.load(control, 4 + (b % slots)) === b - slots + 1);
   return {
     warnings,
     fill: (c0, width) => {
@@ -151,12 +155,14 @@ export function makeBlockSource(fn: string, products: readonly ProductSpec[], co
       let waitedMs = 0;
       for (;;) {
         if (Atomics.load(control, flag) === j + 1) { deliver(j % slots); break; }
-        if (Atomics.compareExchange(control, 0, j, j + 1) === j) {
-          // Nobody had it: compute it here; its ring slot counts as written (never read).
-          compute(0, own, j);
-          deliver(own);
-          Atomics.store(control, flag, j + 1);
-          break;
+        const next = Atomics.load(control, 0);
+        if (next < nFull && slotFree(next, j)) {
+          if (Atomics.compareExchange(control, 0, next, next + 1) === next) {
+            compute(0, next % slots, next);
+            Atomics.store(control, 4 + (next % slots), next + 1);
+            Atomics.notify(control, 4 + (next % slots));
+          }
+          continue;
         }
         if (waitedMs >= RESCUE_MS) { compute(0, own, j); deliver(own); break; }
         Atomics.wait(control, flag, Atomics.load(control, flag), WAIT_MS);
