@@ -98,8 +98,12 @@ function groupDirect(parts: DirectPart[], cuts: Int32Array, segId: Int32Array, n
 interface FftPart extends Kernel {
   readonly segs: Int32Array;
   readonly spectra: Float64Array[];
-  /** Per long segment: source entries near its two edges, with the edge rows and signs. */
-  readonly edgeBins: Int32Array[];
+  /**
+   * Per long segment: the boundary term of source entries near its two edges, as records
+   * (u, i0, i1) in edgeRec with signed weights in edgeW: lags i ∈ [i0, i1) of entry u add
+   * edgeW·y(u + lagStart + i − k).
+   */
+  readonly edgeRec: Int32Array[];
   readonly edgeW: Float64Array[];
 }
 
@@ -224,24 +228,34 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
     }
     if (longSegs.length === 0) return;
     const spectra: Float64Array[] = [];
-    const edgeBins: Int32Array[] = [];
+    const edgeRec: Int32Array[] = [];
     const edgeW: Float64Array[] = [];
     const scratch = new Float64Array(N);
     for (const s of longSegs) {
       const a = cuts[s]!;
       const b = cuts[s + 1]!;
       spectra.push(halfSpectrum(series.subarray(a, b), N, scratch));
-      const eb: number[] = [];
+      // Row tt = u + lagStart + i of entry u counts in [a, b) exactly when the correlation R
+      // (which counts u ∈ [a, b)) must be corrected: +1 for u < a ≤ tt, −1 for tt < a ≤ u,
+      // −1 for u < b ≤ tt, +1 for tt < b ≤ u. A segment longer than two kernels has every entry
+      // near one edge only, so each (entry, edge) gives one lag range of one sign.
+      const rec: number[] = [];
       const ew: number[] = [];
-      for (const beta of [a, b]) {
-        for (let u = Math.max(0, beta - lagEnd); u < Math.min(n, beta - t.lagStart); u++) {
-          if (series[u] !== 0) { eb.push(u); ew.push(series[u]!); }
+      for (const [edge, sign] of [[a, 1], [b, -1]] as const) {
+        for (let u = Math.max(0, edge - lagEnd); u < Math.min(n, edge - t.lagStart); u++) {
+          if (series[u] === 0) continue;
+          const cut = edge - u - t.lagStart; // first lag with tt ≥ edge
+          const [i0, i1, sg] = u < edge ? [Math.max(0, cut), t.nLags, sign] : [0, Math.min(t.nLags, cut), -sign];
+          if (i1 > i0) {
+            rec.push(u, i0, i1);
+            ew.push(sg * series[u]!);
+          }
         }
       }
-      edgeBins.push(Int32Array.from(eb));
+      edgeRec.push(Int32Array.from(rec));
       edgeW.push(Float64Array.from(ew));
     }
-    fft.push({ ...k, segs: Int32Array.from(longSegs), spectra, edgeBins, edgeW });
+    fft.push({ ...k, segs: Int32Array.from(longSegs), spectra, edgeRec, edgeW });
   });
   // Rows masked in the design: their structural values, to subtract.
   const inv: number[] = [];
@@ -418,25 +432,17 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
           if (--m < 0) m += n;
         }
         // Edge corrections.
-        const a = cuts[s]!;
-        const b = cuts[s + 1]!;
-        const eb = part.edgeBins[q]!;
+        const rec = part.edgeRec[q]!;
         const ew = part.edgeW[q]!;
-        for (let e = 0; e < eb.length; e++) {
-          const u = eb[e]!;
+        for (let e = 0, r3 = 0; e < ew.length; e++, r3 += 3) {
+          const i0 = rec[r3 + 1]!;
+          const i1 = rec[r3 + 2]!;
           const su = ew[e]!;
-          for (let i = 0; i < nLags; i++) {
-            const tt = u + lagStart + i;
-            // sign: +[u<a≤tt] − [tt<a≤u] − [u<b≤tt] + [tt<b≤u]
-            let sg = 0;
-            if (u < a && a <= tt) sg++;
-            else if (tt < a && a <= u) sg--;
-            if (u < b && b <= tt) sg--;
-            else if (tt < b && b <= u) sg++;
-            if (sg === 0) continue;
-            let idx = (tt - k) % n;
-            if (idx < 0) idx += n;
-            Q[qo + i] = Q[qo + i]! + sg * su * y[idx]!;
+          let idx = (rec[r3]! + lagStart + i0 - k) % n;
+          if (idx < 0) idx += n;
+          for (let i = i0; i < i1; i++) {
+            Q[qo + i] = Q[qo + i]! + su * y[idx]!;
+            if (++idx === n) idx = 0;
           }
         }
       }
