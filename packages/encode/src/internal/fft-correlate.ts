@@ -132,11 +132,12 @@ export function windowSpectrum(y: Float64Array, a: number, L: number, N: number,
 }
 
 /**
- * R1 (and R2) as defined above from half spectra S1 (S2) of the sources and Z of the window.
- * P = conj(S)·Z is Hermitian for real series, so the full spectrum of P1 + i·P2 is built from
- * the half spectra: bin k gets P1[k] + i·P2[k], bin N − k gets conj(P1[k]) + i·conj(P2[k]).
+ * R1 (and R2) as defined above from half spectra S1 (S2) of the sources and Z1 (Z2) of their
+ * windows (the two may belong to different segments). P = conj(S)·Z is Hermitian for real
+ * series, so the full spectrum of P1 + i·P2 is built from the half spectra: bin k gets
+ * P1[k] + i·P2[k], bin N − k gets conj(P1[k]) + i·conj(P2[k]).
  */
-export function windowCorrelation(s1: Float64Array, s2: Float64Array | null, z: Float64Array, n: number, N: number, out1: Float64Array, out2: Float64Array | null): void {
+export function windowCorrelation(s1: Float64Array, s2: Float64Array | null, z: Float64Array, n: number, N: number, out1: Float64Array, out2: Float64Array | null, z2: Float64Array = z): void {
   const f = fftPlan(N);
   const { a: prod, b: r } = buffers(N);
   const half = N >> 1;
@@ -153,8 +154,10 @@ export function windowCorrelation(s1: Float64Array, s2: Float64Array | null, z: 
     if (s2) {
       const br = s2[i]!;
       const bi = -s2[i + 1]!;
-      p2r = br * zr - bi * zi;
-      p2i = br * zi + bi * zr;
+      const wr = z2[i]!;
+      const wi = z2[i + 1]!;
+      p2r = br * wr - bi * wi;
+      p2i = br * wi + bi * wr;
     }
     prod[i] = p1r - p2i;
     prod[i + 1] = p1i + p2r;

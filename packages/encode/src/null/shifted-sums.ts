@@ -306,30 +306,29 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
     const hi = lo + len;
     return hi <= n ? pre[hi]! - pre[lo]! : pre[n]! - pre[lo]! + pre[hi - n]!;
   };
-  // Per-cell FFT correlations of each long segment: one window spectrum per segment, shared by
-  // every FFT term, and one inverse transform per pair of terms.
+  // Per-cell FFT correlations: one window spectrum per segment, shared by every FFT term on it,
+  // and one inverse transform per two (term, segment) pairs (of the same segment or not).
   const R = new Map<string, Float64Array>();
   if (plan.fft.length > 0) {
     const scratch = new Float64Array(N);
     const segList = [...new Set(plan.fft.flatMap((part) => Array.from(part.segs)))];
+    const Z = new Map<number, Float64Array>();
+    for (const s of segList) Z.set(s, windowSpectrum(y, cuts[s]!, cuts[s + 1]! - cuts[s]!, N, scratch));
+    const users: { pi: number; q: number; s: number }[] = [];
     for (const s of segList) {
-      const a = cuts[s]!;
-      const L = cuts[s + 1]! - a;
-      const Z = windowSpectrum(y, a, L, N, scratch);
-      const users: { pi: number; q: number }[] = [];
       plan.fft.forEach((part, pi) => {
         const q = part.segs.indexOf(s);
-        if (q >= 0) users.push({ pi, q });
+        if (q >= 0) users.push({ pi, q, s });
       });
-      for (let u = 0; u < users.length; u += 2) {
-        const u1 = users[u]!;
-        const u2 = users[u + 1];
-        const r1 = new Float64Array(n);
-        const r2 = u2 ? new Float64Array(n) : null;
-        windowCorrelation(plan.fft[u1.pi]!.spectra[u1.q]!, u2 ? plan.fft[u2.pi]!.spectra[u2.q]! : null, Z, n, N, r1, r2);
-        R.set(`${u1.pi}:${s}`, r1);
-        if (u2 && r2) R.set(`${u2.pi}:${s}`, r2);
-      }
+    }
+    for (let u = 0; u < users.length; u += 2) {
+      const u1 = users[u]!;
+      const u2 = users[u + 1];
+      const r1 = new Float64Array(n);
+      const r2 = u2 ? new Float64Array(n) : null;
+      windowCorrelation(plan.fft[u1.pi]!.spectra[u1.q]!, u2 ? plan.fft[u2.pi]!.spectra[u2.q]! : null, Z.get(u1.s)!, n, N, r1, r2, u2 ? Z.get(u2.s)! : undefined);
+      R.set(`${u1.pi}:${u1.s}`, r1);
+      if (u2 && r2) R.set(`${u2.pi}:${u2.s}`, r2);
     }
   }
   const maxLags = Math.max(1, ...plan.direct.map((d) => d.nLags), ...plan.fft.map((d) => d.nLags));
