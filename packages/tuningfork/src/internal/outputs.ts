@@ -147,7 +147,8 @@ function reportInput(session: Session, r: Partial, o: OutputOptions): SessionRep
     if (c.fittedControl && c.bleaching) {
       const bs = c.bleaching.signal.baseline.values;
       const fc = c.fittedControl.values;
-      predicted = Float64Array.from(fc, (v, i) => bs[i]! * (1 + v));
+      predicted = new Float64Array(fc.length); // a loop: Float64Array.from with a callback is ~50× slower on 1 kHz traces
+      for (let i = 0; i < fc.length; i++) predicted[i] = bs[i]! * (1 + fc[i]!);
     } else if (c.fittedControl) predicted = c.fittedControl.values;
     else predicted = c.bleaching ? c.bleaching.signal.baseline.values : new Float64Array(raw.values.length).fill(NaN);
     const spec = s.quality?.signal.spectrum;
