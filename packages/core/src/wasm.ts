@@ -63,6 +63,8 @@ export const op = {
   set: (i: number) => [0x21, ...uleb(i)],
   tee: (i: number) => [0x22, ...uleb(i)],
   i32c: (v: number) => [0x41, ...sleb(v)],
+  /** f64.const: the 8 little-endian bytes of v. */
+  f64c: (v: number) => [0x44, ...new Uint8Array(Float64Array.of(v).buffer)],
   i32add: [0x6a],
   i32sub: [0x6b],
   i32mul: [0x6c],

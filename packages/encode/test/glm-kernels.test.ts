@@ -114,3 +114,40 @@ describe('convolution structure of a design', () => {
     }
   });
 });
+
+describe('fixed-penalty scorer (WebAssembly SIMD kernel)', () => {
+  it('gives the bits of the JavaScript loops', async () => {
+    const { fitRidgeCV } = await import('../src/index.js');
+    const { PREPARED } = await import('../src/ridge/fit-ridge-cv.js');
+    const { FixedPenaltyScorer } = await import('../src/null/fixed-penalty-scorer.js');
+    const r = rng(5);
+    const times = (k: number) => Float64Array.from({ length: k }, () => 1 + r.uniform() * 290).sort();
+    const design = designMatrix([
+      { name: 'a', group: 'A', times: times(50) },
+      { name: 'b', group: 'B', times: times(50) },
+    ], { startSec: 0, endSec: 300, binRate: 20 });
+    const y = Float64Array.from({ length: design.nRows }, () => r.normal());
+    const fit = fitRidgeCV(design, [{ name: 'c', values: y }], { penalties: [0.1, 1], jackknifeBlocks: 0 });
+    const prep = PREPARED.get(fit)!;
+    const plan = prep.patterns[0]!.plan;
+    const models = [0, 1, 2, 4];
+    const rho = [0.1, 1, 0.1, 1];
+    const simd = new FixedPenaltyScorer(plan, models, rho);
+    const js = new FixedPenaltyScorer(plan, models, rho, false);
+    const nSeg = prep.layout.cuts.length - 1;
+    for (const count of [4, 3, 1]) {
+      const cells = Array.from({ length: 4 }, () => ({
+        c: Float64Array.from({ length: nSeg * design.nCols }, () => r.normal()),
+        ysum: Float64Array.from({ length: nSeg }, () => r.normal()),
+        yy: Float64Array.from({ length: nSeg }, () => 50 + r.uniform()),
+      }));
+      const o1 = Array.from({ length: 4 }, () => new Float64Array(models.length));
+      const o2 = Array.from({ length: 4 }, () => new Float64Array(models.length));
+      const s1 = new Float64Array(4);
+      const s2 = new Float64Array(4);
+      simd.scoreBatch(cells, count, o1, s1);
+      js.scoreBatch(cells, count, o2, s2);
+      for (let b = 0; b < count; b++) expect(sameBits(o1[b]!, o2[b]!)).toBe(true);
+    }
+  });
+});

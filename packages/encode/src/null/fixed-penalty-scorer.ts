@@ -6,6 +6,7 @@
  */
 import type { CellSums } from '../internal/segment-sums.js';
 import type { RidgeCVPlan } from '../ridge/ridge-plan.js';
+import { ScorerKernel } from './scorer-kernel.js';
 
 interface Item {
   readonly cols: Int32Array;
@@ -60,10 +61,12 @@ function foldK(plan: RidgeCVPlan, model: number): { k: Float64Array; dm: Float64
 export class FixedPenaltyScorer {
   private readonly items: Item[][];
   private readonly plan: RidgeCVPlan;
+  /** The dense steps in WebAssembly SIMD (same bits), or null: the JavaScript loops below. */
+  private readonly kernel: ScorerKernel | null;
   readonly nModels: number;
 
-  /** `models` index plan.models; `rho` is the relative penalty of each. */
-  constructor(plan: RidgeCVPlan, models: readonly number[], rho: readonly number[]) {
+  /** `models` index plan.models; `rho` is the relative penalty of each; `wasm: false` keeps the JavaScript loops (tests). */
+  constructor(plan: RidgeCVPlan, models: readonly number[], rho: readonly number[], wasm = true) {
     this.plan = plan;
     this.nModels = models.length;
     this.items = plan.folds.map((fold, f) => models.map((mi, q) => {
@@ -81,6 +84,7 @@ export class FixedPenaltyScorer {
       const kd = foldK(plan, mi)[f]!;
       return { cols: fm.cols, pm, dInv: fm.dInv, s, k: kd.k, dm: kd.dm };
     }));
+    this.kernel = wasm ? ScorerKernel.create(this.items.flat()) : null;
   }
 
   /**
@@ -148,6 +152,7 @@ export class FixedPenaltyScorer {
       const items = this.items[f]!;
       const v0 = v[0]!, v1 = v[1]!, v2 = v[2]!, v3 = v[3]!;
       const w0 = w[0]!, w1 = w[1]!, w2 = w[2]!, w3 = w[3]!;
+      const kern = this.kernel;
       for (let q = 0; q < items.length; q++) {
         const it = items[q]!;
         const pm = it.pm;
@@ -156,6 +161,30 @@ export class FixedPenaltyScorer {
         const S = it.s;
         const K = it.k;
         const dm = it.dm;
+        if (kern) {
+          const kv = kern.v;
+          const kw = kern.w;
+          for (let b = 0; b < 4; b++) {
+            const tr = ccTr[b]!;
+            if (b < B) for (let i = 0; i < pm; i++) kv[4 * i + b] = tr[cols[i]!]! * dInv[i]!;
+            else for (let i = 0; i < pm; i++) kv[4 * i + b] = 0;
+          }
+          kern.apply(f * items.length + q);
+          for (let b = 0; b < B; b++) {
+            const te = ccTe[b]!;
+            let a = 0;
+            let gm = 0;
+            for (let i = 0; i < pm; i++) {
+              const wi = kw[4 * i + b]!;
+              a += wi * te[cols[i]!]! * dInv[i]!;
+              gm += wi * dm[i]!;
+            }
+            const off = dy[b]! - gm;
+            const o = out[b]!;
+            o[q] = o[q]! + yyc[b]! - 2 * a + 2 * kern.q[b]! + fold.nTe * off * off;
+          }
+          continue;
+        }
         for (let b = 0; b < B; b++) {
           const vb = v[b]!;
           const tr = ccTr[b]!;
