@@ -28,12 +28,17 @@ interface Kernel {
   readonly i1: Int32Array;
 }
 
-/** Sparse source entries (bins may lie outside [0, n)); optionally restricted to one segment. */
+/** Sparse source entries (bins may lie outside [0, n)); optionally restricted to some segments. */
 interface DirectPart extends Kernel {
   readonly bins: Int32Array;
   readonly w: Float64Array;
-  /** Only rows of this segment are accumulated (−1: all segments). */
-  readonly onlySeg: number;
+  /** Only rows of segments marked 1 here are accumulated (null: all segments). */
+  readonly onlySegs: Uint8Array | null;
+}
+
+function sameSegs(a: Uint8Array | null, b: Uint8Array | null): boolean {
+  if (a === null || b === null) return a === b;
+  return a.length === b.length && a.every((v, i) => v === b[i]);
 }
 
 /**
@@ -63,7 +68,7 @@ function groupDirect(parts: DirectPart[], cuts: Int32Array, segId: Int32Array, n
     used[a] = true;
     for (let b = a + 1; b < parts.length; b++) {
       const pb = parts[b]!;
-      if (used[b] || pb.onlySeg !== pa.onlySeg || pb.nLags !== pa.nLags || pb.lagStart !== pa.lagStart || pb.bins.length !== pa.bins.length) continue;
+      if (used[b] || !sameSegs(pb.onlySegs, pa.onlySegs) || pb.nLags !== pa.nLags || pb.lagStart !== pa.lagStart || pb.bins.length !== pa.bins.length) continue;
       let same = true;
       for (let e = 0; same && e < pa.bins.length; e++) same = pa.bins[e] === pb.bins[e];
       if (same) {
@@ -83,7 +88,7 @@ function groupDirect(parts: DirectPart[], cuts: Int32Array, segId: Int32Array, n
       while (i < iHi) {
         const seg = segId[t0 + i]!;
         const iEnd = Math.min(iHi, cuts[seg + 1]! - t0);
-        if (pa.onlySeg < 0 || seg === pa.onlySeg) ch.push(i, iEnd, seg);
+        if (pa.onlySegs === null || pa.onlySegs[seg] === 1) ch.push(i, iEnd, seg);
         i = iEnd;
       }
       ptr[e + 1] = ch.length;
@@ -98,13 +103,23 @@ function groupDirect(parts: DirectPart[], cuts: Int32Array, segId: Int32Array, n
 interface FftPart extends Kernel {
   readonly segs: Int32Array;
   readonly spectra: Float64Array[];
-  /**
-   * Per long segment: the boundary term of source entries near its two edges, as records
-   * (u, i0, i1) in edgeRec with signed weights in edgeW: lags i ∈ [i0, i1) of entry u add
-   * edgeW·y(u + lagStart + i − k).
-   */
-  readonly edgeRec: Int32Array[];
-  readonly edgeW: Float64Array[];
+  /** Boundary terms at the edges of the long segments, one per edge position (see Edge). */
+  readonly edges: Edge[];
+}
+
+/**
+ * The boundary term at one cut β: records (u, i0, i1) with signed weights w: lags i ∈ [i0, i1)
+ * of source entry u give E(i) += w·y(u + lagStart + i − k). The segment starting at β (`right`,
+ * a segment index, or −1) adds E, the one ending at β (`left`) subtracts it: one computation
+ * for both neighbours. Lags outside [lo, hi) are untouched.
+ */
+interface Edge {
+  readonly rec: Int32Array;
+  readonly w: Float64Array;
+  readonly right: number;
+  readonly left: number;
+  readonly lo: number;
+  readonly hi: number;
 }
 
 export interface ShiftPlan {
@@ -120,6 +135,8 @@ export interface ShiftPlan {
   readonly invalidX: Float64Array;
   /** Counts of the routes chosen, for reporting. */
   readonly route: { readonly directTerms: number; readonly fftTerms: number };
+  /** Correlation buffers (length n, overwritten by every cell), kept with the plan. */
+  readonly buffers: Float64Array[];
 }
 
 function kernelOf(design: EncodingDesign, ti: number): Kernel {
@@ -194,7 +211,7 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
       useFft = fftSec < directSec && longSegs.length > 0;
     }
     if (!useFft) {
-      direct.push({ ...k, bins: t.eventBins, w: t.eventWeights, onlySeg: -1 });
+      direct.push({ ...k, bins: t.eventBins, w: t.eventWeights, onlySegs: null });
       nd++;
       return;
     }
@@ -215,47 +232,57 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
           ow.push(t.eventWeights[e]!);
         }
       }
-      if (ob.length > 0) direct.push({ ...k, bins: Int32Array.from(ob), w: Float64Array.from(ow), onlySeg: -1 });
+      if (ob.length > 0) direct.push({ ...k, bins: Int32Array.from(ob), w: Float64Array.from(ow), onlySegs: null });
     }
-    // Short segments: direct over the source entries that reach them.
-    for (const s of shortSegs) {
-      const lo = Math.max(0, cuts[s]! - lagEnd);
-      const hi = Math.min(n, cuts[s + 1]! - t.lagStart);
+    // Short segments: one direct part over the source entries that reach any of them, whose
+    // rows are accumulated in those segments only.
+    if (shortSegs.length > 0) {
+      const near = new Uint8Array(n);
+      const onlySegs = new Uint8Array(nSeg);
+      for (const s of shortSegs) {
+        onlySegs[s] = 1;
+        near.fill(1, Math.max(0, cuts[s]! - lagEnd), Math.max(0, Math.min(n, cuts[s + 1]! - t.lagStart)));
+      }
       const bins: number[] = [];
       const w: number[] = [];
-      for (let u = lo; u < hi; u++) if (series[u] !== 0) { bins.push(u); w.push(series[u]!); }
-      if (bins.length > 0) direct.push({ ...k, bins: Int32Array.from(bins), w: Float64Array.from(w), onlySeg: s });
+      for (let u = 0; u < n; u++) if (near[u] && series[u] !== 0) { bins.push(u); w.push(series[u]!); }
+      if (bins.length > 0) direct.push({ ...k, bins: Int32Array.from(bins), w: Float64Array.from(w), onlySegs });
     }
     if (longSegs.length === 0) return;
     const spectra: Float64Array[] = [];
-    const edgeRec: Int32Array[] = [];
-    const edgeW: Float64Array[] = [];
     const scratch = new Float64Array(N);
+    // Edge positions of the long segments, with the segment on each side (−1: none of them).
+    const sides = new Map<number, { right: number; left: number }>();
     for (const s of longSegs) {
-      const a = cuts[s]!;
-      const b = cuts[s + 1]!;
-      spectra.push(halfSpectrum(series.subarray(a, b), N, scratch));
-      // Row tt = u + lagStart + i of entry u counts in [a, b) exactly when the correlation R
-      // (which counts u ∈ [a, b)) must be corrected: +1 for u < a ≤ tt, −1 for tt < a ≤ u,
-      // −1 for u < b ≤ tt, +1 for tt < b ≤ u. A segment longer than two kernels has every entry
-      // near one edge only, so each (entry, edge) gives one lag range of one sign.
+      spectra.push(halfSpectrum(series.subarray(cuts[s]!, cuts[s + 1]!), N, scratch));
+      const at = (beta: number) => sides.get(beta) ?? sides.set(beta, { right: -1, left: -1 }).get(beta)!;
+      at(cuts[s]!).right = s;
+      at(cuts[s + 1]!).left = s;
+    }
+    // Row tt = u + lagStart + i of entry u lies in a segment [a, b) while R counts u ∈ [a, b):
+    // the difference is +1 for u < a ≤ tt and −1 for tt < a ≤ u at its start a, the opposite at
+    // its end b. A segment longer than two kernels has every entry near one of its edges only,
+    // so each (entry, edge) gives one lag range of one sign.
+    const edges: Edge[] = [];
+    for (const [beta, side] of [...sides.entries()].sort((x, y) => x[0] - y[0])) {
       const rec: number[] = [];
       const ew: number[] = [];
-      for (const [edge, sign] of [[a, 1], [b, -1]] as const) {
-        for (let u = Math.max(0, edge - lagEnd); u < Math.min(n, edge - t.lagStart); u++) {
-          if (series[u] === 0) continue;
-          const cut = edge - u - t.lagStart; // first lag with tt ≥ edge
-          const [i0, i1, sg] = u < edge ? [Math.max(0, cut), t.nLags, sign] : [0, Math.min(t.nLags, cut), -sign];
-          if (i1 > i0) {
-            rec.push(u, i0, i1);
-            ew.push(sg * series[u]!);
-          }
+      let lo = t.nLags;
+      let hi = 0;
+      for (let u = Math.max(0, beta - lagEnd); u < Math.min(n, beta - t.lagStart); u++) {
+        if (series[u] === 0) continue;
+        const cut = beta - u - t.lagStart; // first lag with tt ≥ β
+        const [i0, i1, sg] = u < beta ? [Math.max(0, cut), t.nLags, 1] : [0, Math.min(t.nLags, cut), -1];
+        if (i1 > i0) {
+          rec.push(u, i0, i1);
+          ew.push(sg * series[u]!);
+          lo = Math.min(lo, i0);
+          hi = Math.max(hi, i1);
         }
       }
-      edgeRec.push(Int32Array.from(rec));
-      edgeW.push(Float64Array.from(ew));
+      if (rec.length > 0) edges.push({ rec: Int32Array.from(rec), w: Float64Array.from(ew), right: side.right, left: side.left, lo, hi });
     }
-    fft.push({ ...k, segs: Int32Array.from(longSegs), spectra, edgeRec, edgeW });
+    fft.push({ ...k, segs: Int32Array.from(longSegs), spectra, edges });
   });
   // Rows masked in the design: their structural values, to subtract.
   const inv: number[] = [];
@@ -282,7 +309,7 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
       }
     });
   });
-  return { n, p, nSeg, cuts, segId, direct: groupDirect(direct, cuts, segId, n), fft, N, invalidRows, invalidX, route: { directTerms: nd, fftTerms: nf } };
+  return { n, p, nSeg, cuts, segId, direct: groupDirect(direct, cuts, segId, n), fft, N, invalidRows, invalidX, route: { directTerms: nd, fftTerms: nf }, buffers: [] };
 }
 
 /**
@@ -308,7 +335,11 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
   };
   // Per-cell FFT correlations: one window spectrum per segment, shared by every FFT term on it,
   // and one inverse transform per two (term, segment) pairs (of the same segment or not).
-  const R = new Map<string, Float64Array>();
+  // R[pi][q]: correlation of FFT part pi on its q-th segment, in buffers reused between calls.
+  const R: Float64Array[][] = plan.fft.map((part) => Array.from(part.segs, () => new Float64Array(0)));
+  const pool = plan.buffers;
+  for (let need = plan.fft.reduce((a, part) => a + part.segs.length, 0); pool.length < need;) pool.push(new Float64Array(n));
+  let used = 0;
   if (plan.fft.length > 0) {
     const scratch = new Float64Array(N);
     const segList = [...new Set(plan.fft.flatMap((part) => Array.from(part.segs)))];
@@ -324,15 +355,16 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
     for (let u = 0; u < users.length; u += 2) {
       const u1 = users[u]!;
       const u2 = users[u + 1];
-      const r1 = new Float64Array(n);
-      const r2 = u2 ? new Float64Array(n) : null;
+      const r1 = pool[used++]!;
+      const r2 = u2 ? pool[used++]! : null;
       windowCorrelation(plan.fft[u1.pi]!.spectra[u1.q]!, u2 ? plan.fft[u2.pi]!.spectra[u2.q]! : null, Z.get(u1.s)!, n, N, r1, r2, u2 ? Z.get(u2.s)! : undefined);
-      R.set(`${u1.pi}:${u1.s}`, r1);
-      if (u2 && r2) R.set(`${u2.pi}:${u2.s}`, r2);
+      R[u1.pi]![u1.q] = r1;
+      if (u2 && r2) R[u2.pi]![u2.q] = r2;
     }
   }
   const maxLags = Math.max(1, ...plan.direct.map((d) => d.nLags), ...plan.fft.map((d) => d.nLags));
   const Q = new Float64Array(nSeg * maxLags);
+  const E = new Float64Array(maxLags);
   const maxParts = Math.max(1, ...plan.direct.map((d) => d.parts.length));
   const Qs = Array.from({ length: maxParts }, () => new Float64Array(nSeg * maxLags));
   const touched = new Uint8Array(nSeg);
@@ -420,7 +452,7 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
       const { nLags, lagStart, segs } = part;
       for (let q = 0; q < segs.length; q++) {
         const s = segs[q]!;
-        const r = R.get(`${pi}:${s}`)!;
+        const r = R[pi]![q]!;
         const qo = s * maxLags;
         touched[s] = 1;
         // m = (k − lagStart − i) mod n, decreasing with i: wrap once instead of a modulo per lag
@@ -430,19 +462,29 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
           Q[qo + i] = Q[qo + i]! + r[m]!;
           if (--m < 0) m += n;
         }
-        // Edge corrections.
-        const rec = part.edgeRec[q]!;
-        const ew = part.edgeW[q]!;
-        for (let e = 0, r3 = 0; e < ew.length; e++, r3 += 3) {
+      }
+      // Edge corrections, once per edge position for the segments on both sides.
+      for (const edge of part.edges) {
+        const { rec, w, lo, hi } = edge;
+        E.fill(0, lo, hi);
+        for (let e = 0, r3 = 0; e < w.length; e++, r3 += 3) {
           const i0 = rec[r3 + 1]!;
           const i1 = rec[r3 + 2]!;
-          const su = ew[e]!;
+          const su = w[e]!;
           let idx = (rec[r3]! + lagStart + i0 - k) % n;
           if (idx < 0) idx += n;
           for (let i = i0; i < i1; i++) {
-            Q[qo + i] = Q[qo + i]! + su * y[idx]!;
+            E[i] = E[i]! + su * y[idx]!;
             if (++idx === n) idx = 0;
           }
+        }
+        if (edge.right >= 0) {
+          const qo = edge.right * maxLags;
+          for (let i = lo; i < hi; i++) Q[qo + i] = Q[qo + i]! + E[i]!;
+        }
+        if (edge.left >= 0) {
+          const qo = edge.left * maxLags;
+          for (let i = lo; i < hi; i++) Q[qo + i] = Q[qo + i]! - E[i]!;
         }
       }
       flush(part, Q);
