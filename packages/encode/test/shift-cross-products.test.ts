@@ -68,7 +68,8 @@ describe('shifted fold sums (internal engine of shiftNull)', () => {
     const ev = Float64Array.from({ length: 25 }, () => r.uniformIn(-1, 71));
     const mod = Float64Array.from({ length: 25 }, () => r.normal());
     const cov = Float64Array.from({ length: n }, () => r.normal());
-    cov[300] = NaN;
+    cov[300] = NaN; // masked rows inside a test block
+    cov[352] = NaN; // and inside the gap around the fold boundary at row 350
     const d = designMatrix([
       { name: 'a', group: 'A', times: ev, basis: { postSec: 2, nBumps: 4, preSec: 1, nPreBumps: 2 } },
       { name: 'am', group: 'A', times: ev, modulator: mod, basis: { postSec: 2, nBumps: 4, preSec: 1, nPreBumps: 2 } },

@@ -137,6 +137,13 @@ export interface ShiftPlan {
   readonly route: { readonly directTerms: number; readonly fftTerms: number };
   /** Correlation buffers (length n, overwritten by every cell), kept with the plan. */
   readonly buffers: Float64Array[];
+  /** Segments computed from the design's sparse rows (short ones: fold gaps), and a 0/1 mask of them. */
+  readonly rowSegs: Int32Array;
+  readonly rowSeg: Uint8Array;
+  /** The design's sparse rows (for the row route). */
+  readonly rowPtr: Int32Array;
+  readonly colIdx: Int32Array;
+  readonly values: Float64Array;
 }
 
 function kernelOf(design: EncodingDesign, ti: number): Kernel {
@@ -188,6 +195,18 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
   let maxLong = 0;
   for (let s = 0; s < nSeg; s++) maxLong = Math.max(maxLong, cuts[s + 1]! - cuts[s]!);
   const N = windowSize(n, maxLong);
+  // Segments no longer than two of the longest kernels (the gaps around test blocks) are summed
+  // straight from the design's sparse rows for every term: Σ_{t∈s} x_t·y(t − k) costs their
+  // non-zeros per shift, far less than a transform pair or the per-lag gathers of each term.
+  const rowSeg = new Uint8Array(nSeg);
+  const rowList: number[] = [];
+  for (let s = 0; s < nSeg; s++) {
+    if (cuts[s + 1]! - cuts[s]! <= 2 * design.maxKernelBins) {
+      rowSeg[s] = 1;
+      rowList.push(s);
+    }
+  }
+  const structural = rowList.length > 0 ? Uint8Array.from(rowSeg, (v) => 1 - v) : null;
   const direct: DirectPart[] = [];
   const fft: FftPart[] = [];
   let nd = 0;
@@ -198,7 +217,10 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
     // long segments (FFT) vs short ones (direct over nearby sources)
     const longSegs: number[] = [];
     const shortSegs: number[] = [];
-    for (let s = 0; s < nSeg; s++) (cuts[s + 1]! - cuts[s]! > 2 * t.nLags ? longSegs : shortSegs).push(s);
+    for (let s = 0; s < nSeg; s++) {
+      if (rowSeg[s]) continue;
+      (cuts[s + 1]! - cuts[s]! > 2 * t.nLags ? longSegs : shortSegs).push(s);
+    }
     let useFft: boolean;
     if (t.kind === 'covariate') useFft = true;
     else if (force !== 'auto') useFft = force === 'fft';
@@ -211,7 +233,7 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
       useFft = fftSec < directSec && longSegs.length > 0;
     }
     if (!useFft) {
-      direct.push({ ...k, bins: t.eventBins, w: t.eventWeights, onlySegs: null });
+      direct.push({ ...k, bins: t.eventBins, w: t.eventWeights, onlySegs: structural });
       nd++;
       return;
     }
@@ -232,7 +254,7 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
           ow.push(t.eventWeights[e]!);
         }
       }
-      if (ob.length > 0) direct.push({ ...k, bins: Int32Array.from(ob), w: Float64Array.from(ow), onlySegs: null });
+      if (ob.length > 0) direct.push({ ...k, bins: Int32Array.from(ob), w: Float64Array.from(ow), onlySegs: structural });
     }
     // Short segments: one direct part over the source entries that reach any of them, whose
     // rows are accumulated in those segments only.
@@ -309,7 +331,9 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
       }
     });
   });
-  return { n, p, nSeg, cuts, segId, direct: groupDirect(direct, cuts, segId, n), fft, N, invalidRows, invalidX, route: { directTerms: nd, fftTerms: nf }, buffers: [] };
+  return { n, p, nSeg, cuts, segId, direct: groupDirect(direct, cuts, segId, n), fft, N, invalidRows, invalidX, route: { directTerms: nd, fftTerms: nf }, buffers: [],
+    rowSegs: Int32Array.from(rowList), rowSeg, rowPtr: design.rowPtr, colIdx: design.colIdx, values: design.values,
+  };
 }
 
 /**
@@ -317,7 +341,7 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
  * calling `visit(index, sums)` for each; the `sums` object is reused between calls.
  */
 export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Array, visit: (index: number, sums: CellSums) => void): void {
-  const { n, p, nSeg, cuts, segId, N } = plan;
+  const { n, p, nSeg, cuts, segId, N, rowSegs, rowSeg, rowPtr, colIdx, values } = plan;
   // Prefix sums for Σy and Σy² over circular ranges.
   const p1 = new Float64Array(n + 1);
   const p2 = new Float64Array(n + 1);
@@ -489,7 +513,19 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
       }
       flush(part, Q);
     });
-    // Remove rows masked in the design.
+    // Short segments from the sparse rows (masked rows have none).
+    for (let r = 0; r < rowSegs.length; r++) {
+      const s = rowSegs[r]!;
+      const co = s * p;
+      let idx = (cuts[s]! - k) % n;
+      if (idx < 0) idx += n;
+      for (let t = cuts[s]!; t < cuts[s + 1]!; t++) {
+        const v = y[idx]!;
+        if (++idx === n) idx = 0;
+        for (let q = rowPtr[t]!; q < rowPtr[t + 1]!; q++) c[co + colIdx[q]!] = c[co + colIdx[q]!]! + values[q]! * v;
+      }
+    }
+    // Remove rows masked in the design (their structural values, where structure was used).
     const inv = plan.invalidRows;
     for (let ri = 0; ri < inv.length; ri++) {
       const t = inv[ri]!;
@@ -499,6 +535,7 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
       const v = y[idx]!;
       ysum[s] = ysum[s]! - v;
       yy[s] = yy[s]! - v * v;
+      if (rowSeg[s]) continue;
       const xo = ri * p;
       for (let j = 0; j < p; j++) c[s * p + j] = c[s * p + j]! - plan.invalidX[xo + j]! * v;
     }
