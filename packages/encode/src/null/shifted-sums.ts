@@ -140,10 +140,8 @@ export interface ShiftPlan {
   /** Segments computed from the design's sparse rows (short ones: fold gaps), and a 0/1 mask of them. */
   readonly rowSegs: Int32Array;
   readonly rowSeg: Uint8Array;
-  /** The design's sparse rows (for the row route). */
-  readonly rowPtr: Int32Array;
-  readonly colIdx: Int32Array;
-  readonly values: Float64Array;
+  /** Per row segment, its rows by column (row offsets from the segment start). */
+  readonly rowCols: readonly { readonly colPtr: Int32Array; readonly rowOff: Int32Array; readonly values: Float64Array }[];
 }
 
 function kernelOf(design: EncodingDesign, ti: number): Kernel {
@@ -332,8 +330,28 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
     });
   });
   return { n, p, nSeg, cuts, segId, direct: groupDirect(direct, cuts, segId, n), fft, N, invalidRows, invalidX, route: { directTerms: nd, fftTerms: nf }, buffers: [],
-    rowSegs: Int32Array.from(rowList), rowSeg, rowPtr: design.rowPtr, colIdx: design.colIdx, values: design.values,
+    rowSegs: Int32Array.from(rowList), rowSeg, rowCols: rowList.map((seg) => byColumn(design, cuts[seg]!, cuts[seg + 1]!)),
   };
+}
+
+/** Rows [a, b) of the design's sparse rows regrouped by column, with row offsets from a. */
+function byColumn(design: EncodingDesign, a: number, b: number): { colPtr: Int32Array; rowOff: Int32Array; values: Float64Array } {
+  const p = design.nCols;
+  const colPtr = new Int32Array(p + 1);
+  for (let k = design.rowPtr[a]!; k < design.rowPtr[b]!; k++) colPtr[design.colIdx[k]! + 1]!++;
+  for (let j = 0; j < p; j++) colPtr[j + 1] = colPtr[j + 1]! + colPtr[j]!;
+  const fill = colPtr.slice(0, p);
+  const nnz = colPtr[p]!;
+  const rowOff = new Int32Array(nnz);
+  const values = new Float64Array(nnz);
+  for (let t = a; t < b; t++) {
+    for (let k = design.rowPtr[t]!; k < design.rowPtr[t + 1]!; k++) {
+      const at = fill[design.colIdx[k]!]!++;
+      rowOff[at] = t - a;
+      values[at] = design.values[k]!;
+    }
+  }
+  return { colPtr, rowOff, values };
 }
 
 /**
@@ -341,7 +359,10 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
  * calling `visit(index, sums)` for each; the `sums` object is reused between calls.
  */
 export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Array, visit: (index: number, sums: CellSums) => void): void {
-  const { n, p, nSeg, cuts, segId, N, rowSegs, rowSeg, rowPtr, colIdx, values } = plan;
+  const { n, p, nSeg, cuts, segId, N, rowSegs, rowSeg, rowCols } = plan;
+  let maxRowSeg = 0;
+  for (const s of rowSegs) maxRowSeg = Math.max(maxRowSeg, cuts[s + 1]! - cuts[s]!);
+  const yw = new Float64Array(maxRowSeg);
   // Prefix sums for Σy and Σy² over circular ranges.
   const p1 = new Float64Array(n + 1);
   const p2 = new Float64Array(n + 1);
@@ -513,16 +534,25 @@ export function forEachShift(plan: ShiftPlan, y: Float64Array, shifts: Int32Arra
       }
       flush(part, Q);
     });
-    // Short segments from the sparse rows (masked rows have none).
+    // Short segments from the sparse rows, column by column (masked rows have none).
     for (let r = 0; r < rowSegs.length; r++) {
       const s = rowSegs[r]!;
       const co = s * p;
+      const L = cuts[s + 1]! - cuts[s]!;
       let idx = (cuts[s]! - k) % n;
       if (idx < 0) idx += n;
-      for (let t = cuts[s]!; t < cuts[s + 1]!; t++) {
-        const v = y[idx]!;
+      for (let i = 0; i < L; i++) {
+        yw[i] = y[idx]!;
         if (++idx === n) idx = 0;
-        for (let q = rowPtr[t]!; q < rowPtr[t + 1]!; q++) c[co + colIdx[q]!] = c[co + colIdx[q]!]! + values[q]! * v;
+      }
+      const { colPtr, rowOff, values } = rowCols[r]!;
+      for (let j = 0; j < p; j++) {
+        const q1 = colPtr[j + 1]!;
+        let q = colPtr[j]!;
+        if (q === q1) continue;
+        let acc = 0;
+        for (; q < q1; q++) acc += values[q]! * yw[rowOff[q]!]!;
+        c[co + j] = c[co + j]! + acc;
       }
     }
     // Remove rows masked in the design (their structural values, where structure was used).
