@@ -74,12 +74,21 @@ export class FixedPenaltyScorer {
       const pm = fm.pm;
       const lam = rho[q]! * fold.nTr;
       const v = fm.vecs;
+      // S = V·diag(1/(Λ + λ))·Vᵀ, from the scaled rows u_i = V_i / (Λ + λ).
+      const inv = new Float64Array(pm);
+      for (let l = 0; l < pm; l++) inv[l] = 1 / (fm.lam[l]! + lam);
+      const u = new Float64Array(pm * pm);
+      for (let i = 0; i < pm * pm; i++) u[i] = v[i]! * inv[i % pm]!;
       const s = new Float64Array(pm * pm);
-      for (let i = 0; i < pm; i++) for (let j = i; j < pm; j++) {
-        let acc = 0;
-        for (let l = 0; l < pm; l++) acc += (v[i * pm + l]! * v[j * pm + l]!) / (fm.lam[l]! + lam);
-        s[i * pm + j] = acc;
-        s[j * pm + i] = acc;
+      for (let i = 0; i < pm; i++) {
+        const ui = i * pm;
+        for (let j = i; j < pm; j++) {
+          const vj = j * pm;
+          let acc = 0;
+          for (let l = 0; l < pm; l++) acc += u[ui + l]! * v[vj + l]!;
+          s[ui + j] = acc;
+          s[vj + i] = acc;
+        }
       }
       const kd = foldK(plan, mi)[f]!;
       return { cols: fm.cols, pm, dInv: fm.dInv, s, k: kd.k, dm: kd.dm };
