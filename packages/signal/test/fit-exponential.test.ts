@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { expectAllClose } from '@tuningfork/test-utils';
 import { rng } from '@tuningfork/core';
 import { estimateBleaching, evaluateExponential, fitExponentialDecay } from '../src/index.js';
+import { bleachedFraction } from '../src/bleaching/estimate-bleaching.js';
 
 /** SIGNALS.md §1.5 check: t = arange(0, 1800, .1), F = .5 + .3e^(−t/100) + .2e^(−t/1000). */
 function checkData(): { t: Float64Array; y: Float64Array } {
@@ -88,6 +89,14 @@ describe('estimateBleaching', () => {
     expectAllClose(r.fractionBleached, 1 - truth((n - 1) / fs) / truth(0), { atol: 2e-3 });
     expect(r.fit?.converged).toBe(true);
     expectAllClose(r.detrended.values[500]!, x[500]! - r.baseline.values[500]!, { rtol: 1e-15 });
+  });
+
+  it('gives the same fraction bleached without the full-grid baseline (the path siteQuality uses)', () => {
+    for (const method of ['double-exponential', 'single-exponential'] as const) {
+      const full = estimateBleaching({ values: x, sampleRate: fs, t0: 3.5 }, { method });
+      const only = bleachedFraction({ values: x, sampleRate: fs, t0: 3.5 }, { method });
+      expect(Object.is(only.fractionBleached, full.fractionBleached)).toBe(true);
+    }
   });
 
   it("offers a high-pass alternative whose baseline also follows the decay", () => {

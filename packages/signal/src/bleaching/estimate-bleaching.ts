@@ -85,6 +85,9 @@ function interpolateToGrid(s: UniformSignal, tk: Float64Array, vk: Float64Array)
   return out;
 }
 
+/** Samples between re-anchorings (a fresh exp) of the grid recurrence. */
+const GRID_BLOCK = 4096;
+
 /** Evaluate a·e^(−u/τ1) + b·e^(−u/τ2) + c on the grid by a re-anchored geometric recurrence. */
 function evaluateOnGrid(s: UniformSignal, f: ExponentialFit): Float64Array {
   const n = s.values.length;
@@ -92,7 +95,7 @@ function evaluateOnGrid(s: UniformSignal, f: ExponentialFit): Float64Array {
   const dt = 1 / s.sampleRate;
   const r1 = Math.exp(-dt / f.tau1);
   const r2 = f.model === 'double' ? Math.exp(-dt / f.tau2) : 0;
-  const BLOCK = 4096;
+  const BLOCK = GRID_BLOCK;
   for (let a = 0; a < n; a += BLOCK) {
     const u0 = s.t0 + a / s.sampleRate - f.originSec;
     let e1 = Math.exp(-u0 / f.tau1);
@@ -121,8 +124,8 @@ function evaluateOnGrid(s: UniformSignal, f: ExponentialFit): Float64Array {
  * @throws {TuningforkError} TF_NON_FINITE (first NaN index and time), TF_TOO_FEW_SAMPLES (fewer
  *   than 6 fitting points), TF_BAD_OPTION.
  */
-export function estimateBleaching(signal: UniformSignal, options: BleachingOptions = {}): BleachingEstimate {
-  const fn = 'estimateBleaching';
+/** Validated options, block means and the exponential fit when the method has one (shared stage). */
+function prepare(fn: string, signal: UniformSignal, options: BleachingOptions) {
   const opts = resolveOptions(fn, DEFAULTS, options);
   checkUniform(fn, 'signal', signal);
   const method = checkOneOf(fn, 'method', opts.method, ['double-exponential', 'single-exponential', 'highpass', 'airpls'] as const);
@@ -137,8 +140,53 @@ export function estimateBleaching(signal: UniformSignal, options: BleachingOptio
   if (t.length < 6) {
     throw new TuningforkError('TF_TOO_FEW_SAMPLES', `${fn}: only ${t.length} block(s) at ${rate} Hz; need at least 6 to estimate bleaching (record longer or raise fitRateHz).`, { fn, blocks: t.length });
   }
-  let baselineValues: Float64Array;
   let fit: ExponentialFit | null = null;
+  if (method === 'double-exponential' || method === 'single-exponential') {
+    let smooth = v;
+    if (lowPassHz < 0.45 * rate) {
+      const lp = butterworth({ order: 2, cutoffHz: lowPassHz, sampleRate: rate });
+      if (t.length > lp.padLen) smooth = zeroPhasePlan(lp).apply(v);
+      else warnings.push({ code: 'LOWPASS_SKIPPED', message: `${fn}: too few blocks (${t.length}) to low-pass before fitting; fitted the block means.` });
+    }
+    fit = fitExponentialDecay(t, smooth, { model: method === 'double-exponential' ? 'double' : 'single', tauMinSec: opts.tauMinSec, tauMaxSec: opts.tauMaxSec });
+    warnings.push(...fit.warnings);
+  }
+  return { method, cutoffHz, t, v, rate, fit, warnings };
+}
+
+/**
+ * Internal (siteQuality): the fraction bleached and the fit of an exponential method, without
+ * the baseline on the full grid. The two baseline values come from the same recurrence as
+ * {@link estimateBleaching}'s grid, so the fraction is the same number.
+ */
+export function bleachedFraction(signal: UniformSignal, options: BleachingOptions = {}): { fractionBleached: number; fit: ExponentialFit; warnings: ResultWarning[] } {
+  const fn = 'estimateBleaching';
+  const { fit, warnings } = prepare(fn, signal, options);
+  if (!fit) throw new TuningforkError('TF_BAD_OPTION', `${fn}: the fraction-only path needs an exponential method.`, { fn });
+  const n = signal.values.length;
+  return { fractionBleached: 1 - valueOnGrid(signal, fit, n - 1) / valueOnGrid(signal, fit, 0), fit, warnings };
+}
+
+/** The value evaluateOnGrid writes at index i (same anchor and recurrence steps). */
+function valueOnGrid(s: UniformSignal, f: ExponentialFit, i: number): number {
+  const a = i - (i % GRID_BLOCK);
+  const u0 = s.t0 + a / s.sampleRate - f.originSec;
+  const dt = 1 / s.sampleRate;
+  const r1 = Math.exp(-dt / f.tau1);
+  const r2 = f.model === 'double' ? Math.exp(-dt / f.tau2) : 0;
+  let e1 = Math.exp(-u0 / f.tau1);
+  let e2 = f.model === 'double' ? Math.exp(-u0 / f.tau2) : 0;
+  for (let k = a; k < i; k++) {
+    e1 *= r1;
+    e2 *= r2;
+  }
+  return f.a * e1 + f.b * e2 + f.c;
+}
+
+export function estimateBleaching(signal: UniformSignal, options: BleachingOptions = {}): BleachingEstimate {
+  const fn = 'estimateBleaching';
+  const { method, cutoffHz, t, v, rate, fit, warnings } = prepare(fn, signal, options);
+  let baselineValues: Float64Array;
   if (method === 'airpls') {
     const r = airPls(v, { lambda: whittakerLambda(rate, cutoffHz, 2), order: 2 });
     if (!r.converged) warnings.push({ code: 'NOT_CONVERGED', message: `${fn}: airPLS reached its iteration cap (${r.iterations}).` });
@@ -150,15 +198,7 @@ export function estimateBleaching(signal: UniformSignal, options: BleachingOptio
     const slow = zeroPhasePlan(lp, { padLen }).apply(v);
     baselineValues = interpolateToGrid(signal, t, slow);
   } else {
-    let smooth = v;
-    if (lowPassHz < 0.45 * rate) {
-      const lp = butterworth({ order: 2, cutoffHz: lowPassHz, sampleRate: rate });
-      if (t.length > lp.padLen) smooth = zeroPhasePlan(lp).apply(v);
-      else warnings.push({ code: 'LOWPASS_SKIPPED', message: `${fn}: too few blocks (${t.length}) to low-pass before fitting; fitted the block means.` });
-    }
-    fit = fitExponentialDecay(t, smooth, { model: method === 'double-exponential' ? 'double' : 'single', tauMinSec: opts.tauMinSec, tauMaxSec: opts.tauMaxSec });
-    warnings.push(...fit.warnings);
-    baselineValues = evaluateOnGrid(signal, fit);
+    baselineValues = evaluateOnGrid(signal, fit!);
   }
   const x = signal.values;
   const det = new Float64Array(x.length);

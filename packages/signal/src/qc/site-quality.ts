@@ -1,6 +1,6 @@
 import { checkInteger, checkPositive, resolveOptions } from '@tuningfork/core';
 import type { PhotometrySite, ResultWarning, UniformSignal } from '@tuningfork/core';
-import { estimateBleaching } from '../bleaching/estimate-bleaching.js';
+import { bleachedFraction } from '../bleaching/estimate-bleaching.js';
 import { fitControl } from '../correction/fit-control.js';
 import { butterworth } from '../filter/design.js';
 import { zeroPhasePlan } from '../filter/zero-phase.js';
@@ -59,7 +59,7 @@ const DEFAULTS = Object.freeze({ timestamps: null, detectorRange: null, lowPassH
  * Quality-control report of one photometry site (SIGNALS.md §1.8).
  *
  * Per channel: non-finite count, clipping ({@link findClipping}), bleaching fraction (double
- * exponential, {@link estimateBleaching}), Welch spectrum of the raw channel and its narrow peaks
+ * exponential, as estimateBleaching), Welch spectrum of the raw channel and its narrow peaks
  * (> 10 dB over the local median: heartbeat, mains, frame rates). Per site: SNR of the sensor
  * ({@link estimateSnr}), Pearson r and OLS slope of signal on control after a low-pass, and the
  * timestamp checks when timestamps are given. Nothing is thrown for bad data: problems become
@@ -86,7 +86,7 @@ export function siteQuality(site: PhotometrySite, options: SiteQualityOptions = 
     let peaks: SpectralPeak[] = [];
     if (nonFinite === 0) {
       try {
-        const b = estimateBleaching(s, { method: 'double-exponential' });
+        const b = bleachedFraction(s, { method: 'double-exponential' });
         bleachingFraction = b.fractionBleached;
         if (b.fit && (!b.fit.converged || b.fit.tauAtBound)) warnings.push({ code: 'BLEACH_FIT_UNRELIABLE', message: `${fn}: ${label} bleaching fit ${b.fit.converged ? 'has a time constant at a bound' : 'did not converge'}.` });
       } catch (e) {
