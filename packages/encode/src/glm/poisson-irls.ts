@@ -262,8 +262,6 @@ export interface IrlsOptions {
   readonly wantHessian?: boolean;
   /** Iterations that use `fixedHessian` before switching to exact IRLS Hessians. @defaultValue Infinity */
   readonly fixedIterations?: number;
-  /** Exact-Hessian iterations before switching to the first exact Hessian kept fixed. @defaultValue Infinity */
-  readonly exactIterations?: number;
   /** Rows used for the working Hessian: every stride-th (weights × stride); 1 = all. @defaultValue 1 */
   readonly hessianStride?: number;
   /**
@@ -337,7 +335,6 @@ export function irls(prob: PoissonProblem, ranges: RowRanges, pen: Float64Array,
         if (typeof f2 === 'number') break;
         fac = f2;
       } else fac = f;
-      if (it >= (opts.exactIterations ?? Infinity)) fixed = fac;
     }
     const step = choleskySolveInPlace(fac, Float64Array.from(g));
     if (opts.newtonFinish && fac !== fixed) {

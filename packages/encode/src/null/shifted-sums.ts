@@ -212,13 +212,9 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
   design.terms.forEach((t, ti) => {
     const k = kernelOf(design, ti);
     const lagEnd = t.lagStart + t.nLags - 1;
-    // long segments (FFT) vs short ones (direct over nearby sources)
+    // The other segments are longer than two of this term's kernels (FFT or direct route).
     const longSegs: number[] = [];
-    const shortSegs: number[] = [];
-    for (let s = 0; s < nSeg; s++) {
-      if (rowSeg[s]) continue;
-      (cuts[s + 1]! - cuts[s]! > 2 * t.nLags ? longSegs : shortSegs).push(s);
-    }
+    for (let s = 0; s < nSeg; s++) if (!rowSeg[s]) longSegs.push(s);
     let useFft: boolean;
     if (t.kind === 'covariate') useFft = true;
     else if (force !== 'auto') useFft = force === 'fft';
@@ -253,20 +249,6 @@ export function buildShiftPlan(design: EncodingDesign, cuts: Int32Array, nShifts
         }
       }
       if (ob.length > 0) direct.push({ ...k, bins: Int32Array.from(ob), w: Float64Array.from(ow), onlySegs: structural });
-    }
-    // Short segments: one direct part over the source entries that reach any of them, whose
-    // rows are accumulated in those segments only.
-    if (shortSegs.length > 0) {
-      const near = new Uint8Array(n);
-      const onlySegs = new Uint8Array(nSeg);
-      for (const s of shortSegs) {
-        onlySegs[s] = 1;
-        near.fill(1, Math.max(0, cuts[s]! - lagEnd), Math.max(0, Math.min(n, cuts[s + 1]! - t.lagStart)));
-      }
-      const bins: number[] = [];
-      const w: number[] = [];
-      for (let u = 0; u < n; u++) if (near[u] && series[u] !== 0) { bins.push(u); w.push(series[u]!); }
-      if (bins.length > 0) direct.push({ ...k, bins: Int32Array.from(bins), w: Float64Array.from(w), onlySegs });
     }
     if (longSegs.length === 0) return;
     const spectra: Float64Array[] = [];
