@@ -114,27 +114,12 @@ export function convScore(s: ConvStructure, g: Float64Array, lo = 0, hi = s.r.le
 /** A convolution multiply-add streams contiguous memory; a CSR one gathers through an index: about this many times cheaper (measured, Node 20). */
 const CONV_ADVANTAGE = 2.5;
 
-const cache = new WeakMap<EncodingDesign, Map<string, ConvStructure | null>>();
-
 /**
  * The structure of `design` restricted to `cols` (ascending; null = all columns), whose CSR is
  * `sub`; null when no term is cheaper by convolution or the check against the CSR fails.
- * Cached per design and column set.
+ * (Callers cache it per design and column set: poisson-unit.ts.)
  */
 export function convStructure(design: EncodingDesign, cols: Int32Array | null, sub: EncodingDesign): ConvStructure | null {
-  let byCols = cache.get(design);
-  if (!byCols) {
-    byCols = new Map();
-    cache.set(design, byCols);
-  }
-  const key = cols ? Array.from(cols).join(',') : '*';
-  if (byCols.has(key)) return byCols.get(key)!;
-  const s = build(design, cols, sub);
-  byCols.set(key, s);
-  return s;
-}
-
-function build(design: EncodingDesign, cols: Int32Array | null, sub: EncodingDesign): ConvStructure | null {
   const n = design.nRows;
   const p = design.nCols;
   const newIdx = new Int32Array(p).fill(-1);

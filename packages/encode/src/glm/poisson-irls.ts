@@ -141,7 +141,8 @@ function evaluateStructured(prob: PoissonProblem, s: ConvStructure, ranges: RowR
     r.fill(0, lo, hi);
   }
   if (values.length === 0 && scalar && !rowValid) {
-    // Every column is in the structure and no row is masked: η = β₀ + offset + (Xβ)_t.
+    // Every column is in the structure and no row is masked: η = β₀ + offset + (Xβ)_t. Two
+    // loops on purpose: one loop with the gradient test inside made 40 GLMs 7 % slower.
     const base = b0 + off0;
     for (let q = 0; q < ranges.length; q += 2) {
       const t1 = ranges[q + 1]!;

@@ -10,6 +10,7 @@ import { deviance, finishHessian, hessianInverse, irls, predictEta, scoreOn, wei
 import { cholesky, choleskySolveInPlace } from '../linalg/cholesky.js';
 import type { PoissonProblem } from './poisson-irls.js';
 import { convStructure } from './conv-structure.js';
+import type { ConvStructure } from './conv-structure.js';
 import type { PoissonCellFit } from './poisson-glm-cv.js';
 
 /** Resolved settings shared by every unit of one poissonGLMCV call (plain data only). */
@@ -110,7 +111,7 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
       }
       return st;
     };
-    const prob: PoissonProblem = { n, p: sub.nCols, rowPtr: sub.rowPtr, colIdx: sub.colIdx, values: sub.values, y, offset, rowValid: valid, structure: convStructure(design, cols, sub) };
+    const prob: PoissonProblem = { n, p: sub.nCols, rowPtr: sub.rowPtr, colIdx: sub.colIdx, values: sub.values, y, offset, rowValid: valid, structure: cached.structure };
     const eta = new Float64Array(n);
     const mu = new Float64Array(n);
     const tot = colStats(sub, 0, n, valid);
@@ -240,10 +241,13 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
 
 interface ColStats { readonly s: Float64Array; readonly ss: Float64Array; readonly n: number }
 
-/** Per design and column set (key '*' = all): the restricted CSR and cached column sums by row range. */
-const restrictedCache = new WeakMap<EncodingDesign, Map<string, { sub: EncodingDesign; stats: Map<string, ColStats> }>>();
+/** What every unit of a design shares for one column set: the restricted CSR, its convolution structure and column sums by row range. */
+interface Restricted { readonly sub: EncodingDesign; readonly structure: ConvStructure | null; readonly stats: Map<string, ColStats> }
 
-function restricted(design: EncodingDesign, cols: Int32Array | null): { sub: EncodingDesign; stats: Map<string, ColStats> } {
+/** Per design and column set (key '*' = all). */
+const restrictedCache = new WeakMap<EncodingDesign, Map<string, Restricted>>();
+
+function restricted(design: EncodingDesign, cols: Int32Array | null): Restricted {
   let byCols = restrictedCache.get(design);
   if (!byCols) {
     byCols = new Map();
@@ -252,7 +256,8 @@ function restricted(design: EncodingDesign, cols: Int32Array | null): { sub: Enc
   const key = cols ? Array.from(cols).join(',') : '*';
   let entry = byCols.get(key);
   if (!entry) {
-    entry = { sub: cols ? subDesign(design, cols) : design, stats: new Map() };
+    const sub = cols ? subDesign(design, cols) : design;
+    entry = { sub, structure: convStructure(design, cols, sub), stats: new Map() };
     byCols.set(key, entry);
   }
   return entry;

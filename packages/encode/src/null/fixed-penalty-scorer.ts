@@ -159,8 +159,6 @@ export class FixedPenaltyScorer {
         }
       }
       const items = this.items[f]!;
-      const v0 = v[0]!, v1 = v[1]!, v2 = v[2]!, v3 = v[3]!;
-      const w0 = w[0]!, w1 = w[1]!, w2 = w[2]!, w3 = w[3]!;
       const kern = this.kernel;
       for (let q = 0; q < items.length; q++) {
         const it = items[q]!;
@@ -170,65 +168,7 @@ export class FixedPenaltyScorer {
         const S = it.s;
         const K = it.k;
         const dm = it.dm;
-        if (kern) {
-          const kv = kern.v;
-          const kw = kern.w;
-          for (let b = 0; b < 4; b++) {
-            const tr = ccTr[b]!;
-            if (b < B) for (let i = 0; i < pm; i++) kv[4 * i + b] = tr[cols[i]!]! * dInv[i]!;
-            else for (let i = 0; i < pm; i++) kv[4 * i + b] = 0;
-          }
-          kern.apply(f * items.length + q);
-          for (let b = 0; b < B; b++) {
-            const te = ccTe[b]!;
-            let a = 0;
-            let gm = 0;
-            for (let i = 0; i < pm; i++) {
-              const wi = kw[4 * i + b]!;
-              a += wi * te[cols[i]!]! * dInv[i]!;
-              gm += wi * dm[i]!;
-            }
-            const off = dy[b]! - gm;
-            const o = out[b]!;
-            o[q] = o[q]! + yyc[b]! - 2 * a + 2 * kern.q[b]! + fold.nTe * off * off;
-          }
-          continue;
-        }
-        for (let b = 0; b < B; b++) {
-          const vb = v[b]!;
-          const tr = ccTr[b]!;
-          for (let i = 0; i < pm; i++) vb[i] = tr[cols[i]!]! * dInv[i]!;
-        }
-        for (let b = B; b < 4; b++) v[b]!.fill(0, 0, pm);
-        // w_b = S·v_b for four vectors at once
-        for (let i = 0; i < pm; i++) {
-          const row = i * pm;
-          let a0 = 0, a1 = 0, a2 = 0, a3 = 0;
-          for (let j = 0; j < pm; j++) {
-            const sij = S[row + j]!;
-            a0 += sij * v0[j]!;
-            a1 += sij * v1[j]!;
-            a2 += sij * v2[j]!;
-            a3 += sij * v3[j]!;
-          }
-          w0[i] = a0; w1[i] = a1; w2[i] = a2; w3[i] = a3;
-        }
-        // quadratic forms w_bᵀKw_b by the upper triangle
-        let q0 = 0, q1 = 0, q2 = 0, q3 = 0;
-        for (let i = 0; i < pm; i++) {
-          const row = i * pm;
-          const kii = 0.5 * K[row + i]!;
-          let a0 = kii * w0[i]!, a1 = kii * w1[i]!, a2 = kii * w2[i]!, a3 = kii * w3[i]!;
-          for (let j = i + 1; j < pm; j++) {
-            const kij = K[row + j]!;
-            a0 += kij * w0[j]!;
-            a1 += kij * w1[j]!;
-            a2 += kij * w2[j]!;
-            a3 += kij * w3[j]!;
-          }
-          q0 += w0[i]! * a0; q1 += w1[i]! * a1; q2 += w2[i]! * a2; q3 += w3[i]! * a3;
-        }
-        const quads = [q0, q1, q2, q3];
+        const quads = kern ? this.denseWasm(kern, f * items.length + q, pm, cols, dInv, ccTr, B, w) : denseJs(S, K, pm, cols, dInv, ccTr, B, v, w);
         for (let b = 0; b < B; b++) {
           const wb = w[b]!;
           const te = ccTe[b]!;
@@ -245,4 +185,62 @@ export class FixedPenaltyScorer {
       }
     });
   }
+
+  /** The dense steps of item `item` in the kernel; w_b copied out to `w`, the forms returned. */
+  private denseWasm(kern: ScorerKernel, item: number, pm: number, cols: Int32Array, dInv: Float64Array, ccTr: readonly Float64Array[], B: number, w: readonly Float64Array[]): number[] {
+    const kv = kern.v;
+    const kw = kern.w;
+    for (let b = 0; b < 4; b++) {
+      const tr = ccTr[b]!;
+      if (b < B) for (let i = 0; i < pm; i++) kv[4 * i + b] = tr[cols[i]!]! * dInv[i]!;
+      else for (let i = 0; i < pm; i++) kv[4 * i + b] = 0;
+    }
+    kern.apply(item);
+    for (let b = 0; b < B; b++) {
+      const wb = w[b]!;
+      for (let i = 0; i < pm; i++) wb[i] = kw[4 * i + b]!;
+    }
+    return [kern.q[0]!, kern.q[1]!, kern.q[2]!, kern.q[3]!];
+  }
+}
+
+/** The dense steps in JavaScript: w_b = S·v_b into `w` and the forms w_bᵀKw_b, four at once. */
+function denseJs(S: Float64Array, K: Float64Array, pm: number, cols: Int32Array, dInv: Float64Array, ccTr: readonly Float64Array[], B: number, v: readonly Float64Array[], w: readonly Float64Array[]): number[] {
+  const v0 = v[0]!, v1 = v[1]!, v2 = v[2]!, v3 = v[3]!;
+  const w0 = w[0]!, w1 = w[1]!, w2 = w[2]!, w3 = w[3]!;
+  for (let b = 0; b < B; b++) {
+    const vb = v[b]!;
+    const tr = ccTr[b]!;
+    for (let i = 0; i < pm; i++) vb[i] = tr[cols[i]!]! * dInv[i]!;
+  }
+  for (let b = B; b < 4; b++) v[b]!.fill(0, 0, pm);
+  // w_b = S·v_b for four vectors at once
+  for (let i = 0; i < pm; i++) {
+    const row = i * pm;
+    let a0 = 0, a1 = 0, a2 = 0, a3 = 0;
+    for (let j = 0; j < pm; j++) {
+      const sij = S[row + j]!;
+      a0 += sij * v0[j]!;
+      a1 += sij * v1[j]!;
+      a2 += sij * v2[j]!;
+      a3 += sij * v3[j]!;
+    }
+    w0[i] = a0; w1[i] = a1; w2[i] = a2; w3[i] = a3;
+  }
+  // quadratic forms w_bᵀKw_b by the upper triangle
+  let q0 = 0, q1 = 0, q2 = 0, q3 = 0;
+  for (let i = 0; i < pm; i++) {
+    const row = i * pm;
+    const kii = 0.5 * K[row + i]!;
+    let a0 = kii * w0[i]!, a1 = kii * w1[i]!, a2 = kii * w2[i]!, a3 = kii * w3[i]!;
+    for (let j = i + 1; j < pm; j++) {
+      const kij = K[row + j]!;
+      a0 += kij * w0[j]!;
+      a1 += kij * w1[j]!;
+      a2 += kij * w2[j]!;
+      a3 += kij * w3[j]!;
+    }
+    q0 += w0[i]! * a0; q1 += w1[i]! * a1; q2 += w2[i]! * a2; q3 += w3[i]! * a3;
+  }
+  return [q0, q1, q2, q3];
 }

@@ -17,8 +17,6 @@ import type { WasmMemory, WasmModule } from '@tuningfork/core';
 import { BLOCK } from './count-plan.js';
 import type { CountPlan } from './count-plan.js';
 
-export type { WasmMemory, WasmModule } from '@tuningfork/core';
-
 /** Bytes per group in the WebAssembly table: 256 entries × 4 columns, then the same doubled. */
 const GROUP_BYTES = 2 * 256 * BLOCK * 8;
 
