@@ -80,6 +80,66 @@ function medianAbsResidual(x: Float64Array, y: Float64Array, stride: number, a: 
   return medianInPlace(buf, c);
 }
 
+/** Centred sums of a line fit y ≈ a + b·x over the strided samples. */
+export interface OlsMoments {
+  /** Samples used. */
+  readonly m: number;
+  readonly mx: number;
+  readonly my: number;
+  /** Σ(x − x̄)², Σ(x − x̄)(y − ȳ), Σ(y − ȳ)². */
+  readonly sxx: number;
+  readonly sxy: number;
+  readonly syy: number;
+}
+
+/**
+ * Means (compensated: a second pass adds the mean residual) and centred sums of squares and
+ * products of x and y over every `stride`-th sample: OLS slope = sxy/sxx, R² = sxy²/(sxx·syy).
+ * Inputs must be finite.
+ *
+ * @throws {TuningforkError} TF_DEGENERATE_SIGNAL when x is constant (sd < 1e-6·|mean| or zero).
+ */
+export function olsMoments(fn: string, x: Float64Array, y: Float64Array, stride = 1): OlsMoments {
+  const n = x.length;
+  const m = Math.ceil(n / stride);
+  // Global (strided) means, compensated.
+  let sx = 0;
+  let sy = 0;
+  for (let i = 0; i < n; i += stride) {
+    sx += x[i]!;
+    sy += y[i]!;
+  }
+  let mx = sx / m;
+  let my = sy / m;
+  let cx = 0;
+  let cy = 0;
+  for (let i = 0; i < n; i += stride) {
+    cx += x[i]! - mx;
+    cy += y[i]! - my;
+  }
+  mx += cx / m;
+  my += cy / m;
+  let sxx = 0;
+  let sxy = 0;
+  let syy = 0;
+  for (let i = 0; i < n; i += stride) {
+    const dx = x[i]! - mx;
+    const dy = y[i]! - my;
+    sxx += dx * dx;
+    sxy += dx * dy;
+    syy += dy * dy;
+  }
+  const sdx = Math.sqrt(sxx / m);
+  if (!(sdx > 1e-6 * Math.abs(mx)) || sxx === 0) {
+    throw new TuningforkError(
+      'TF_DEGENERATE_SIGNAL',
+      `${fn}: the control has standard deviation ${sdx} against mean ${mx} (< 1e-6 of |mean|); it carries no shared artefact to fit. Skip motion correction for this site.`,
+      { fn, sd: sdx, mean: mx },
+    );
+  }
+  return { m, mx, my, sxx, sxy, syy };
+}
+
 /**
  * Fit the control channel to the signal channel: signal ≈ intercept + slope·control.
  *
@@ -130,41 +190,7 @@ export function fitControl(signal: ArrayLike<number>, control: ArrayLike<number>
   const m = Math.ceil(n / stride);
   if (m < 3) throw new TuningforkError('TF_TOO_FEW_SAMPLES', `${fn}: need at least 3 samples for the fit, got ${m}.`, { fn, n: m });
 
-  // Global (strided) means, compensated.
-  let sx = 0;
-  let sy = 0;
-  for (let i = 0; i < n; i += stride) {
-    sx += x[i]!;
-    sy += y[i]!;
-  }
-  let mx = sx / m;
-  let my = sy / m;
-  let cx = 0;
-  let cy = 0;
-  for (let i = 0; i < n; i += stride) {
-    cx += x[i]! - mx;
-    cy += y[i]! - my;
-  }
-  mx += cx / m;
-  my += cy / m;
-  let sxx = 0;
-  let sxy = 0;
-  let syy = 0;
-  for (let i = 0; i < n; i += stride) {
-    const dx = x[i]! - mx;
-    const dy = y[i]! - my;
-    sxx += dx * dx;
-    sxy += dx * dy;
-    syy += dy * dy;
-  }
-  const sdx = Math.sqrt(sxx / m);
-  if (!(sdx > 1e-6 * Math.abs(mx)) || sxx === 0) {
-    throw new TuningforkError(
-      'TF_DEGENERATE_SIGNAL',
-      `${fn}: the control has standard deviation ${sdx} against mean ${mx} (< 1e-6 of |mean|); it carries no shared artefact to fit. Skip motion correction for this site.`,
-      { fn, sd: sdx, mean: mx },
-    );
-  }
+  const { mx, my, sxx, sxy, syy } = olsMoments(fn, x, y, stride);
   // Centred coordinates: yc ≈ ac + b·xc. OLS: ac = 0.
   let b = sxy / sxx;
   let ac = 0;

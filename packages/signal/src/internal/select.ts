@@ -72,3 +72,42 @@ export function mad(x: ArrayLike<number>): { median: number; mad: number } {
   for (let i = 0; i < x.length; i++) d[i] = Math.abs(x[i]! - m);
   return { median: m, mad: medianInPlace(d) };
 }
+
+/**
+ * Median of x (numpy's convention: mean of the two middle values for even n), exact, without
+ * reordering or copying x. A strided sample of about 4,096 values brackets the median; one pass
+ * counts the values below the bracket and collects those inside it, and the median is selected
+ * among the collected few. When the bracket misses (or holds too many values) it falls back to a
+ * full selection on a copy, so the result is exact either way. x must not hold NaN. NaN for n = 0.
+ */
+export function medianOf(x: Float64Array): number {
+  const n = x.length;
+  if (n < 1 << 14) return medianInPlace(Float64Array.from(x));
+  const k1 = (n - 1) >> 1;
+  const k2 = n >> 1;
+  const stride = Math.floor(n / 4096);
+  const ns = Math.floor((n - 1) / stride) + 1;
+  const sample = new Float64Array(ns);
+  for (let i = 0, j = 0; i < n; i += stride, j++) sample[j] = x[i]!;
+  // Ranks about 4 standard errors of a sample quantile either side of the middle.
+  const half = Math.ceil(4 * Math.sqrt(ns) / 2) + 2;
+  const mid = (ns - 1) >> 1;
+  const lo = select(sample, Math.max(0, mid - half));
+  const hi = select(sample, Math.min(ns - 1, mid + half));
+  const cap = Math.max(1 << 12, Math.ceil((n * 8 * half) / ns));
+  const buf = new Float64Array(cap);
+  let below = 0;
+  let cnt = 0;
+  for (let i = 0; i < n; i++) {
+    const v = x[i]!;
+    if (v < lo) below++;
+    else if (v <= hi) {
+      if (cnt === cap) return medianInPlace(Float64Array.from(x));
+      buf[cnt++] = v;
+    }
+  }
+  if (!(below <= k1 && k2 < below + cnt)) return medianInPlace(Float64Array.from(x));
+  const v1 = select(buf, k1 - below, 0, cnt - 1);
+  if (k2 === k1) return v1;
+  return (v1 + minOf(buf, k1 - below + 1, cnt - 1)) / 2;
+}

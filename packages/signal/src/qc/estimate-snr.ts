@@ -2,7 +2,7 @@ import { TuningforkError, checkPositive, resolveOptions } from '@tuningfork/core
 import type { UniformSignal } from '@tuningfork/core';
 import { butterworth } from '../filter/design.js';
 import { zeroPhasePlan } from '../filter/zero-phase.js';
-import { medianInPlace } from '../internal/select.js';
+import { medianOf } from '../internal/select.js';
 import { checkUniform, requireFinite } from '../internal/validate.js';
 import { MAD_TO_SD } from '../correction/z-score.js';
 
@@ -52,8 +52,8 @@ export function estimateSnr(signal: UniformSignal, options: SnrOptions = {}): Sn
   for (let i = 0; i < yb.length; i++) ss += (yb[i]! - m) * (yb[i]! - m);
   const signalSd = Math.sqrt(ss / yb.length);
   const yh = zeroPhasePlan(hp).apply(x, yb);
-  const med = medianInPlace(Float64Array.from(yh));
+  const med = medianOf(yh);
   for (let i = 0; i < yh.length; i++) yh[i] = Math.abs(yh[i]! - med);
-  const noiseSd = MAD_TO_SD * medianInPlace(yh);
+  const noiseSd = MAD_TO_SD * medianOf(yh);
   return { snr: signalSd / noiseSd, signalSd, noiseSd };
 }

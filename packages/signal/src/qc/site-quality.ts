@@ -1,7 +1,7 @@
 import { checkInteger, checkPositive, resolveOptions } from '@tuningfork/core';
 import type { PhotometrySite, ResultWarning, UniformSignal } from '@tuningfork/core';
 import { bleachedFraction } from '../bleaching/estimate-bleaching.js';
-import { fitControl } from '../correction/fit-control.js';
+import { olsMoments } from '../correction/fit-control.js';
 import { butterworth } from '../filter/design.js';
 import { zeroPhasePlan } from '../filter/zero-phase.js';
 import { checkSameGrid, checkUniform, countNonFinite } from '../internal/validate.js';
@@ -118,9 +118,10 @@ export function siteQuality(site: PhotometrySite, options: SiteQualityOptions = 
         const ls = plan.apply(site.signal.values);
         const lc = plan.apply(site.control.values);
         try {
-          const f = fitControl(ls, lc, { method: 'ols' });
-          slope = f.slope;
-          r = Math.sign(slope) * Math.sqrt(f.olsRSquared);
+          // The OLS line and r only (fitControl would also compute a median residual scale).
+          const f = olsMoments(fn, lc, ls);
+          slope = f.sxy / f.sxx;
+          r = f.syy > 0 ? f.sxy / Math.sqrt(f.sxx * f.syy) : NaN;
         } catch (e) {
           warnings.push({ code: 'CONTROL_FIT_FAILED', message: `${fn}: control–signal fit failed: ${(e as Error).message}` });
         }
