@@ -50,6 +50,30 @@ describe('fitControl', () => {
     }
   });
 
+  it('matches the numpy specification on a 200,001-sample trace, where the median and the sums share one pass', () => {
+    // The input of gen_irls.py's `long` case, rebuilt with the same exactly rounded operations.
+    const n = fx.long.n as number;
+    const ctl = new Float64Array(n);
+    const sig = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      ctl[i] = 1.0 + 0.05 * ((i % 17000) / 17000) + 0.01 * (((i * 7919) % 1000) / 1000 - 0.5);
+      const j = i % 4000;
+      sig[i] = 0.8 + 1.7 * ctl[i]! + 0.004 * (((i * 104729) % 997) / 997 - 0.5) + (j < 600 ? 0.05 * (1 - j / 600) : 0.0);
+    }
+    for (const e of fx.long.fits as { method: 'huber' | 'bisquare'; tuning: number; intercept: number; slope: number; iterations: number; downweighted: number }[]) {
+      const f = fitControl(sig, ctl, { method: e.method, tuning: e.tuning });
+      expectAllClose([f.intercept, f.slope], [e.intercept, e.slope], { rtol: 1e-11, label: `${e.method} ${e.tuning}`, source: fx.source });
+      expect(f.iterations).toBe(e.iterations);
+      // The fraction of weights below 0.5 in the last iteration, a count: exact.
+      expect(f.downweighted).toBe(e.downweighted);
+      // Every-other-sample fits take the same route on the strided samples.
+      const g = fitControl(sig, ctl, { method: e.method, tuning: e.tuning, stride: 2 });
+      const sub = (a: Float64Array) => a.filter((_, i) => i % 2 === 0);
+      const h = fitControl(sub(sig), sub(ctl), { method: e.method, tuning: e.tuning });
+      expect([g.intercept, g.slope, g.iterations, g.downweighted]).toEqual([h.intercept, h.slope, h.iterations, h.downweighted]);
+    }
+  });
+
   it('S = 2C + 0.1 gives ΔF/F ≡ 0 (SIGNALS.md §1.6)', () => {
     const c = Float64Array.from({ length: 200 }, (_, i) => 1 + 0.1 * Math.sin(i / 7) + 0.01 * Math.cos(i));
     const s = Float64Array.from(c, (v) => 2 * v + 0.1);

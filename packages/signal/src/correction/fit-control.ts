@@ -80,6 +80,226 @@ function medianAbsResidual(x: Float64Array, y: Float64Array, stride: number, a: 
   return medianInPlace(buf, c);
 }
 
+/** Weight of one scaled residual u (Huber: min(1, c/|u|); bisquare: (1 − u²)² for |u| < 1, else 0). */
+function irlsWeight(method: 'huber' | 'bisquare', u: number, c: number): number {
+  const au = Math.abs(u);
+  if (method === 'bisquare') {
+    if (au < 1) {
+      const t = 1 - u * u;
+      return t * t;
+    }
+    return 0;
+  }
+  return au <= c ? 1 : c / au;
+}
+
+/**
+ * One IRLS step's weighted sums about the means, in one pass: [Σw, Σw·dx, Σw·dy, Σw·dx²,
+ * Σw·dx·dy, #(w < 0.5)] with dx = x − mx, dy = y − my, u = (dy − (ac + b·dx))·inv.
+ */
+function directSums(x: Float64Array, y: Float64Array, stride: number, mx: number, my: number, ac: number, b: number, inv: number, method: 'huber' | 'bisquare', c: number): number[] {
+  let sw = 0, swx = 0, swy = 0, swxx = 0, swxy = 0, low = 0;
+  for (let i = 0; i < x.length; i += stride) {
+    const dx = x[i]! - mx;
+    const dy = y[i]! - my;
+    const w = irlsWeight(method, (dy - (ac + b * dx)) * inv, c);
+    if (w < 0.5) low++;
+    sw += w;
+    swx += w * dx;
+    swy += w * dy;
+    swxx += w * dx * dx;
+    swxy += w * dx * dy;
+  }
+  return [sw, swx, swy, swxx, swxy, low];
+}
+
+/** Relative margin around class boundaries, far above the rounding of the residuals. */
+const MARGIN = 1e-9;
+/** Bisquare weight (1 − u²)² is below 0.5 exactly when |u| > √(1 − √0.5). */
+const BISQUARE_HALF = Math.sqrt(1 - Math.SQRT1_2);
+
+/**
+ * The median of |residual| and the next IRLS sums in a single pass over the data, for when the
+ * median is bracketed by [lo, hi] (the previous median ± a few times its last change).
+ *
+ * The weights depend on the scale s = median/0.6745, unknown until the pass ends; but with the
+ * median in [lo, hi] the weight threshold T = c·s lies in a known interval, so most samples can be
+ * classed during the pass: |r| below it (Huber w = 1; bisquare w = (1 − r²/T²)², summed as
+ * Σf − 2Σr²f/T² + Σr⁴f/T⁴), above it (Huber w = T/|r|, summed as T·Σf/|r|; bisquare w = 0), and
+ * the few near it, whose dx, dy are kept and weighted exactly once s is known. The count of
+ * w < 0.5 is classed the same way around its own threshold. Sums are regrouped, so they equal the
+ * two-pass sums up to rounding. When the median falls outside the bracket, run() reports NaN and
+ * the caller takes the two-pass route; when too many samples sit near a threshold, finish()
+ * returns null and the caller computes the sums directly.
+ */
+class FusedPass {
+  private readonly method: 'huber' | 'bisquare';
+  private readonly c: number;
+  private readonly buf: Float64Array;
+  /** dx, dy of samples near the weight threshold; |r| of samples near the w = 0.5 threshold. */
+  private readonly near: Float64Array;
+  private readonly nearLow: Float64Array;
+  /** Huber: [n, Σdx, Σdy, Σdx², Σdx·dy] below, the same of f/|r| above; bisquare: f, r²f, r⁴f below. */
+  private readonly acc = new Float64Array(15);
+  private nNear = 0;
+  private nNearLow = 0;
+  private lowSure = 0;
+  private overflow = false;
+  private mx = 0;
+  private my = 0;
+  private ac = 0;
+  private b = 0;
+
+  constructor(method: 'huber' | 'bisquare', c: number, m: number) {
+    this.method = method;
+    this.c = c;
+    this.buf = new Float64Array(m);
+    const cap = (m >> 3) + 16;
+    this.near = new Float64Array(2 * cap);
+    this.nearLow = new Float64Array(cap);
+  }
+
+  run(x: Float64Array, y: Float64Array, stride: number, a0: number, b0: number, mx: number, my: number, ac: number, b: number, lo: number, hi: number): { median: number } {
+    const n = x.length;
+    const m = this.buf.length;
+    const buf = this.buf;
+    const near = this.near;
+    const nearLow = this.nearLow;
+    const capNear = near.length >> 1;
+    const capLow = nearLow.length;
+    const acc = this.acc;
+    acc.fill(0);
+    this.mx = mx;
+    this.my = my;
+    this.ac = ac;
+    this.b = b;
+    // T = c·median/0.6745 for both weight families; w < 0.5 at |r| > 2T (Huber) or > 0.541·T (bisquare).
+    const tLo = (this.c * lo) / MAD_CONST * (1 - MARGIN);
+    const tHi = (this.c * hi) / MAD_CONST * (1 + MARGIN);
+    const huber = this.method === 'huber';
+    const k = huber ? 2 : BISQUARE_HALF;
+    const lLo = k * tLo;
+    const lHi = k * tHi;
+    let below = 0;
+    let cnt = 0;
+    let nNear = 0;
+    let nNearLow = 0;
+    let lowSure = 0;
+    let overflow = false;
+    let a0s = 0, a1 = 0, a2 = 0, a3 = 0, a4 = 0;
+    let q0 = 0, q1 = 0, q2 = 0, q3 = 0, q4 = 0;
+    let p0 = 0, p1 = 0, p2 = 0, p3 = 0, p4 = 0;
+    for (let i = 0; i < n; i += stride) {
+      const xi = x[i]!;
+      const yi = y[i]!;
+      const ro = Math.abs(yi - (a0 + b0 * xi));
+      if (ro < lo) below++;
+      else if (ro <= hi) buf[cnt++] = ro;
+      const dx = xi - mx;
+      const dy = yi - my;
+      const r = dy - (ac + b * dx);
+      const ar = Math.abs(r);
+      if (ar < tLo) {
+        if (huber) {
+          a0s += 1;
+          a1 += dx;
+          a2 += dy;
+          a3 += dx * dx;
+          a4 += dx * dy;
+        } else {
+          const r2 = r * r;
+          const r4 = r2 * r2;
+          const xx = dx * dx;
+          const xy = dx * dy;
+          a0s += 1; a1 += dx; a2 += dy; a3 += xx; a4 += xy;
+          q0 += r2; q1 += r2 * dx; q2 += r2 * dy; q3 += r2 * xx; q4 += r2 * xy;
+          p0 += r4; p1 += r4 * dx; p2 += r4 * dy; p3 += r4 * xx; p4 += r4 * xy;
+          if (ar > lHi) lowSure++;
+          else if (ar >= lLo) {
+            if (nNearLow < capLow) nearLow[nNearLow++] = ar;
+            else overflow = true;
+          }
+        }
+      } else if (ar > tHi) {
+        if (huber) {
+          const inv = 1 / ar;
+          const xq = dx * inv;
+          q0 += inv;
+          q1 += xq;
+          q2 += dy * inv;
+          q3 += xq * dx;
+          q4 += xq * dy;
+          if (ar > lHi) lowSure++;
+          else if (ar >= lLo) {
+            if (nNearLow < capLow) nearLow[nNearLow++] = ar;
+            else overflow = true;
+          }
+        } else lowSure++;
+      } else if (nNear < capNear) {
+        near[2 * nNear] = dx;
+        near[2 * nNear + 1] = dy;
+        nNear++;
+      } else overflow = true;
+    }
+    acc[0] = a0s; acc[1] = a1; acc[2] = a2; acc[3] = a3; acc[4] = a4;
+    acc[5] = q0; acc[6] = q1; acc[7] = q2; acc[8] = q3; acc[9] = q4;
+    acc[10] = p0; acc[11] = p1; acc[12] = p2; acc[13] = p3; acc[14] = p4;
+    this.nNear = nNear;
+    this.nNearLow = nNearLow;
+    this.lowSure = lowSure;
+    this.overflow = overflow;
+    const k1 = (m - 1) >> 1;
+    const k2 = m >> 1;
+    if (!(below <= k1 && k2 < below + cnt)) return { median: NaN };
+    const j1 = k1 - below;
+    const v1 = select(buf, j1, 0, cnt - 1);
+    if (k2 === k1) return { median: v1 };
+    let v2 = Infinity;
+    for (let j = j1 + 1; j < cnt; j++) if (buf[j]! < v2) v2 = buf[j]!;
+    return { median: (v1 + v2) / 2 };
+  }
+
+  /** The sums of the last run() for the weights' inv (1/s Huber, 1/(c·s) bisquare), or null when near-threshold samples overflowed. */
+  finish(inv: number): number[] | null {
+    if (this.overflow) return null;
+    const acc = this.acc;
+    const c = this.c;
+    let sw: number, swx: number, swy: number, swxx: number, swxy: number;
+    if (this.method === 'huber') {
+      const t = c / inv;
+      sw = acc[0]! + t * acc[5]!;
+      swx = acc[1]! + t * acc[6]!;
+      swy = acc[2]! + t * acc[7]!;
+      swxx = acc[3]! + t * acc[8]!;
+      swxy = acc[4]! + t * acc[9]!;
+    } else {
+      const i2 = inv * inv;
+      const i4 = i2 * i2;
+      const poly = (j: number): number => acc[j]! - 2 * i2 * acc[5 + j]! + i4 * acc[10 + j]!;
+      sw = poly(0);
+      swx = poly(1);
+      swy = poly(2);
+      swxx = poly(3);
+      swxy = poly(4);
+    }
+    let low = this.lowSure;
+    for (let j = 0; j < this.nNearLow; j++) if (irlsWeight(this.method, this.nearLow[j]! * inv, c) < 0.5) low++;
+    const near = this.near;
+    for (let j = 0; j < this.nNear; j++) {
+      const dx = near[2 * j]!;
+      const dy = near[2 * j + 1]!;
+      const w = irlsWeight(this.method, (dy - (this.ac + this.b * dx)) * inv, c);
+      if (w < 0.5) low++;
+      sw += w;
+      swx += w * dx;
+      swy += w * dy;
+      swxx += w * dx * dx;
+      swxy += w * dx * dy;
+    }
+    return [sw, swx, swy, swxx, swxy, low];
+  }
+}
+
 /** Centred sums of a line fit y ≈ a + b·x over the strided samples. */
 export interface OlsMoments {
   /** Samples used. */
@@ -149,7 +369,10 @@ export function olsMoments(fn: string, x: Float64Array, y: Float64Array, stride 
  * least-squares line; stop when max|Δβ| < 1e-10·max(1, max|β|) or after maxIterations
  * (converged = false). Transients of the sensor are outliers to the shared-artefact relation; a
  * robust fit keeps them from tilting the line. Weighted sums are accumulated about the global
- * means, so large offsets cost no precision; the median uses exact linear-time selection.
+ * means, so large offsets cost no precision; the median uses exact linear-time selection. From
+ * the second iteration on, the median and the weighted sums share one pass over the data (the
+ * sums regrouped by weight class, equal to the two-pass sums up to rounding), which halves the
+ * memory traffic of long full-rate fits.
  *
  * @param signal - Sensor channel samples (finite).
  * @param control - Isosbestic control samples, same length (finite, not constant).
@@ -208,9 +431,19 @@ export function fitControl(signal: ArrayLike<number>, control: ArrayLike<number>
   let width = 0.25;
   let s = NaN;
   let low = 0;
+  const fused = new FusedPass(method, c, m);
   while (it < maxIt) {
     it++;
-    const med = medianAbsResidual(x, y, stride, intercept, slope, prevMed, width, buf);
+    // With a bracket for the median, one pass over the data yields both the median and the sums
+    // (FusedPass); otherwise, or when the bracket misses, the median and the sums take a pass each.
+    let med = NaN;
+    let sums: readonly number[] | null = null;
+    if (prevMed > 0 && Number.isFinite(prevMed)) {
+      const r = fused.run(x, y, stride, intercept, slope, mx, my, ac, b, prevMed * (1 - width), prevMed * (1 + width));
+      med = r.median;
+      if (med === med && med > 0) sums = fused.finish(method === 'bisquare' ? 1 / (c * (med / MAD_CONST)) : 1 / (med / MAD_CONST));
+    }
+    if (!(med === med)) med = medianAbsResidual(x, y, stride, intercept, slope, NaN, 0, buf);
     // Next bracket: a few times the last relative change of the median (it shrinks as IRLS converges).
     if (prevMed > 0) width = Math.min(0.25, Math.max(1e-4, (4 * Math.abs(med - prevMed)) / med));
     prevMed = med;
@@ -220,32 +453,10 @@ export function fitControl(signal: ArrayLike<number>, control: ArrayLike<number>
       converged = true;
       break;
     }
-    let sw = 0, swx = 0, swy = 0, swxx = 0, swxy = 0;
-    low = 0;
     const inv = method === 'bisquare' ? 1 / (c * s) : 1 / s;
-    for (let i = 0; i < n; i += stride) {
-      const dx = x[i]! - mx;
-      const dy = y[i]! - my;
-      const r = dy - (ac + b * dx);
-      const u = r * inv;
-      let w: number;
-      if (method === 'bisquare') {
-        const au = Math.abs(u);
-        if (au < 1) {
-          const t = 1 - u * u;
-          w = t * t;
-        } else w = 0;
-      } else {
-        const au = Math.abs(u);
-        w = au <= c ? 1 : c / au;
-      }
-      if (w < 0.5) low++;
-      sw += w;
-      swx += w * dx;
-      swy += w * dy;
-      swxx += w * dx * dx;
-      swxy += w * dx * dy;
-    }
+    sums ??= directSums(x, y, stride, mx, my, ac, b, inv, method, c);
+    const [sw, swx, swy, swxx, swxy, lowCount] = sums as [number, number, number, number, number, number];
+    low = lowCount;
     const den = swxx - (swx * swx) / sw;
     if (!(sw > 0) || !(den > 0)) {
       throw new TuningforkError('TF_FIT_FAILED', `${fn}: all weights vanished at IRLS iteration ${it} (tuning ${c} too small for these data?).`, { fn, iteration: it });
