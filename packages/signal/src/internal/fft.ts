@@ -24,12 +24,19 @@ export interface RealDft {
   readonly n: number;
   /** Transform x (length n) into out (length 2·(⌊n/2⌋ + 1)). */
   forward(x: Float64Array, out: Float64Array): void;
+  /**
+   * Transform x and return a reused internal buffer whose first 2·(⌊n/2⌋ + 1) values are the
+   * bins (no copy; zeros may carry a sign). Valid until the next call.
+   */
+  bins(x: Float64Array): Float64Array;
 }
 
 export function realDft(n: number): RealDft {
   const half = (n >> 1) + 1;
   if (n === 1) {
-    return { n, forward(x, out) { out[0] = x[0]!; out[1] = 0; } };
+    const one = new Float64Array(2);
+    const forward = (x: Float64Array, out: Float64Array): void => { out[0] = x[0]!; out[1] = 0; };
+    return { n, forward, bins(x) { forward(x, one); return one; } };
   }
   if (isPowerOfTwo(n)) {
     const f = plan(n);
@@ -41,6 +48,10 @@ export function realDft(n: number): RealDft {
         for (let k = 0; k < 2 * half; k++) out[k] = buf[k]!;
         // fft.js may emit −0; normalise to +0 for stable comparisons.
         for (let k = 0; k < 2 * half; k++) if (out[k] === 0) out[k] = 0;
+      },
+      bins(x: Float64Array): Float64Array {
+        f.realTransform(buf, x);
+        return buf;
       },
     };
   }
@@ -71,28 +82,34 @@ export function realDft(n: number): RealDft {
   const a = new Float64Array(2 * m);
   const af = new Float64Array(2 * m);
   const conv = new Float64Array(2 * m);
+  const binsOut = new Float64Array(2 * half);
+  const forward = (x: Float64Array, out: Float64Array): void => {
+    a.fill(0);
+    for (let j = 0; j < n; j++) {
+      // x_j · conj(w_j)
+      a[2 * j] = x[j]! * wr[j]!;
+      a[2 * j + 1] = -x[j]! * wi[j]!;
+    }
+    f.transform(af, a);
+    for (let k = 0; k < m; k++) {
+      const ar = af[2 * k]!, ai = af[2 * k + 1]!, br = bf[2 * k]!, bi = bf[2 * k + 1]!;
+      af[2 * k] = ar * br - ai * bi;
+      af[2 * k + 1] = ar * bi + ai * br;
+    }
+    f.inverseTransform(conv, af);
+    for (let k = 0; k < half; k++) {
+      const cr = conv[2 * k]!, ci = conv[2 * k + 1]!;
+      // conj(w_k) · conv_k
+      out[2 * k] = cr * wr[k]! + ci * wi[k]!;
+      out[2 * k + 1] = ci * wr[k]! - cr * wi[k]!;
+    }
+  };
   return {
     n,
-    forward(x: Float64Array, out: Float64Array): void {
-      a.fill(0);
-      for (let j = 0; j < n; j++) {
-        // x_j · conj(w_j)
-        a[2 * j] = x[j]! * wr[j]!;
-        a[2 * j + 1] = -x[j]! * wi[j]!;
-      }
-      f.transform(af, a);
-      for (let k = 0; k < m; k++) {
-        const ar = af[2 * k]!, ai = af[2 * k + 1]!, br = bf[2 * k]!, bi = bf[2 * k + 1]!;
-        af[2 * k] = ar * br - ai * bi;
-        af[2 * k + 1] = ar * bi + ai * br;
-      }
-      f.inverseTransform(conv, af);
-      for (let k = 0; k < half; k++) {
-        const cr = conv[2 * k]!, ci = conv[2 * k + 1]!;
-        // conj(w_k) · conv_k
-        out[2 * k] = cr * wr[k]! + ci * wi[k]!;
-        out[2 * k + 1] = ci * wr[k]! - cr * wi[k]!;
-      }
+    forward,
+    bins(x: Float64Array): Float64Array {
+      forward(x, binsOut);
+      return binsOut;
     },
   };
 }

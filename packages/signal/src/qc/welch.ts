@@ -111,7 +111,6 @@ export function welch(signal: UniformSignal, options: WelchOptions = {}): PowerS
   const nb = (nper >> 1) + 1;
   const dft = realDft(nper);
   const seg = new Float64Array(nper);
-  const spec = new Float64Array(2 * nb);
   const acc = new Float64Array(nb);
   const all = average === 'median' ? new Float64Array(nb * segments) : null;
   // Linear detrend helpers: t centred on its mean.
@@ -134,13 +133,22 @@ export function welch(signal: UniformSignal, options: WelchOptions = {}): PowerS
       }
       for (let i = 0; i < nper; i++) seg[i] = (x[off + i]! - mean - slope * (i - tc)) * w[i]!;
     }
-    dft.forward(seg, spec);
-    for (let k = 0; k < nb; k++) {
-      const re = spec[2 * k]!, im = spec[2 * k + 1]!;
-      let p = (re * re + im * im) * scale;
-      if (k > 0 && !(nper % 2 === 0 && k === nb - 1)) p *= 2;
-      if (all) all[k * segments + s] = p;
-      else acc[k] = acc[k]! + p;
+    const spec = dft.bins(seg);
+    // One-sided: every bin but DC (and Nyquist for even nper) counts twice.
+    const lastSingle = nper % 2 === 0 ? nb - 1 : nb;
+    if (all) {
+      for (let k = 0; k < nb; k++) {
+        const re = spec[2 * k]!, im = spec[2 * k + 1]!;
+        const p = (re * re + im * im) * scale;
+        all[k * segments + s] = k > 0 && k !== lastSingle ? 2 * p : p;
+      }
+    } else {
+      acc[0] = acc[0]! + (spec[0]! * spec[0]! + spec[1]! * spec[1]!) * scale;
+      for (let k = 1; k < nb; k++) {
+        const re = spec[2 * k]!, im = spec[2 * k + 1]!;
+        const p = (re * re + im * im) * scale;
+        acc[k] = acc[k]! + (k !== lastSingle ? p * 2 : p);
+      }
     }
   }
   const power = new Float64Array(nb);
