@@ -284,19 +284,11 @@ class FusedPass {
     }
     let low = this.lowSure;
     for (let j = 0; j < this.nNearLow; j++) if (irlsWeight(this.method, this.nearLow[j]! * inv, c) < 0.5) low++;
-    const near = this.near;
-    for (let j = 0; j < this.nNear; j++) {
-      const dx = near[2 * j]!;
-      const dy = near[2 * j + 1]!;
-      const w = irlsWeight(this.method, (dy - (this.ac + this.b * dx)) * inv, c);
-      if (w < 0.5) low++;
-      sw += w;
-      swx += w * dx;
-      swy += w * dy;
-      swxx += w * dx * dx;
-      swxy += w * dx * dy;
-    }
-    return [sw, swx, swy, swxx, swxy, low];
+    // Samples near the threshold, weighted exactly: `near` holds (dx, dy) pairs, read as x and y
+    // with stride 2 about zero means.
+    const k = 2 * this.nNear;
+    const [w0, w1, w2, w3, w4, wl] = directSums(this.near.subarray(0, k), this.near.subarray(1, k + 1), 2, 0, 0, this.ac, this.b, inv, this.method, c) as [number, number, number, number, number, number];
+    return [sw + w0, swx + w1, swy + w2, swxx + w3, swxy + w4, low + wl];
   }
 }
 
