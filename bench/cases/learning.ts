@@ -3,11 +3,13 @@
 // maximum likelihood and by MAP with the weakly informative priors); parameter recovery of 50 agents
 // ≤ 30 s using both cores (default 20 starts per fit). The peer comparison times the numpy/scipy
 // yardstick's `learning_model_fit` fit (../shared/peer/pipeline.py, fit_learning_model: L-BFGS-B,
-// 5 starts, numerical gradients) against ours with 5 starts on the same trials.
+// 5 starts, numerical gradients) against ours with 5 starts on the same trials. The hierarchical
+// (empirical-Bayes) fit of 50 agents × 500 trials is timed without a target (none was set).
+import { rng } from '@tuningfork/core';
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { fitChoiceModel, parameterRecovery, reversalSchedule, simulateChoices } from '@tuningfork/learning';
+import { RECOVERY_RANGES, fitChoiceModel, fitChoicePopulation, parameterRecovery, reversalSchedule, simulateChoices } from '@tuningfork/learning';
 import { SIMULATE_DEFAULTS } from '@tuningfork/simulate';
 import type { BenchCase, BenchRow } from '../harness.js';
 
@@ -17,6 +19,21 @@ const AGENT = { alpha: SIMULATE_DEFAULTS.alpha, beta: SIMULATE_DEFAULTS.beta, al
 function session(nTrials: number, seed: number) {
   const { schedule } = reversalSchedule({ nTrials, seed });
   return simulateChoices(schedule, AGENT, { model: 'q-ck', seed: seed + 1 });
+}
+
+/** 50 agents × 500 trials of q-ck, parameters uniform in RECOVERY_RANGES (the library's default population). */
+function agents(nAgents: number, nTrials: number, seed: number) {
+  const root = rng(seed);
+  return Array.from({ length: nAgents }, (_, i) => {
+    const r = root.stream(i);
+    const draw = (name: 'alpha' | 'beta' | 'alphaC' | 'betaC') => {
+      const [lo, hi] = RECOVERY_RANGES[name];
+      return lo + (hi - lo) * r.uniform();
+    };
+    const params = { alpha: draw('alpha'), beta: draw('beta'), alphaC: draw('alphaC'), betaC: draw('betaC') };
+    const { schedule } = reversalSchedule({ nTrials, seed: seed + 1000 + i });
+    return simulateChoices(schedule, params, { model: 'q-ck', seed: seed + 2000 + i });
+  });
 }
 
 function median(x: number[]): number {
@@ -57,6 +74,13 @@ export const cases: BenchCase[] = [
     run: (s: ReturnType<typeof session>) => fitChoiceModel(s, { model: 'q-ck', starts: 20, seed: 1, priors: 'weakly-informative' }).objective,
     reps: 7,
     targetSec: 1,
+  },
+  {
+    name: 'learning: hierarchical (empirical-Bayes) fit q-ck, fitChoicePopulation',
+    size: '50 agents × 500 trials, 20 starts per agent (initial fits + first E-step), one thread',
+    setup: () => agents(50, 500, 31),
+    run: (s: ReturnType<typeof agents>) => fitChoicePopulation(s, { model: 'q-ck', starts: 20, seed: 1 }).ibic,
+    reps: 3,
   },
   {
     name: 'learning: parameter recovery q-ck, 2 workers vs 1 thread',

@@ -6,11 +6,12 @@
 //   npx tsx --conditions=@tuningfork/source packages/learning/scripts/recovery-study.ts \
 //       [--agents 50] [--trials 500] [--starts 20] [--workers 2] [--seed 1] [--scaling 1000,2000 | none]
 //
-// Prints markdown tables (≈ 1.5 min on 2 cores):
+// Prints markdown tables (≈ 3 min on 2 cores):
 //  1. parameter recovery of the combined model 'q-ck' (P ∝ exp(β·Q + β_C·C)) on the simulator's task,
-//     maximum likelihood (ML) and MAP with the weakly informative priors, for three populations of
-//     agents, with an approximate information ceiling per parameter;
-//  2. how the correlations grow with the number of trials (MAP);
+//     maximum likelihood (ML), MAP with the weakly informative priors, and the hierarchical
+//     empirical-Bayes fit (EB, fitChoicePopulation: Gaussian population prior fitted by EM), for three
+//     populations of agents, with an approximate information ceiling per parameter;
+//  2. how the correlations grow with the number of trials (MAP and EB);
 //  3. sessions made by @tuningfork/simulate's own agent: a model-equivalence check, per-trial RPE/APE
 //     correlations at the simulator's default parameters, and recovery on two populations;
 //  4. model recovery (confusion and inversion matrices) by BIC and by AIC.
@@ -19,7 +20,7 @@ import { rng } from '@tuningfork/core';
 import type { Matrix } from '@tuningfork/core';
 import { SIMULATE_DEFAULTS, simulateSession } from '@tuningfork/simulate';
 import { RECOVERY_RANGES, choiceRegressors, fitChoiceModel, modelRecovery, parameterRecovery } from '@tuningfork/learning';
-import type { ChoiceParamName, ChoicePriors, ParameterRecovery } from '@tuningfork/learning';
+import type { ChoiceParamName, ChoicePriors, ParameterRecovery, ParameterRecoveryOptions } from '@tuningfork/learning';
 
 function arg(name: string, fallback: string): string {
   const i = process.argv.indexOf(`--${name}`);
@@ -36,9 +37,16 @@ const f3 = (x: number) => (Number.isFinite(x) ? x.toFixed(3) : String(x));
 const f2 = (x: number) => (Number.isFinite(x) ? x.toFixed(2) : String(x));
 const TARGET = 0.9;
 const NAMES = ['alpha', 'beta', 'alphaC', 'betaC'] as const;
+// Per-agent estimators (sections 1 and 3).
 const ESTIMATORS: readonly { label: string; priors: ChoicePriors }[] = [
   { label: 'ML', priors: 'none' },
   { label: 'MAP', priors: 'weakly-informative' },
+];
+// Section 1 adds the hierarchical fit: initial per-agent fits with the weakly informative priors, then EM
+// of a Gaussian population prior on the transformed scale with fitChoicePopulation's default settings.
+const RECOVERY_ESTIMATORS: readonly { label: string; options: Pick<ParameterRecoveryOptions, 'priors' | 'estimator'> }[] = [
+  ...ESTIMATORS.map((e) => ({ label: e.label, options: { priors: e.priors } })),
+  { label: 'EB', options: { estimator: 'empirical-bayes' } },
 ];
 
 function pearson(x: ArrayLike<number>, y: ArrayLike<number>): number {
@@ -145,7 +153,7 @@ const rangeText = (r: readonly [number, number]) => `[${f3(r[0])}, ${f3(r[1])}]`
 console.log(`# Recovery study — ${nAgents} agents × ${nTrials} trials, ${starts} starts per fit, ${workers} worker thread(s), seed ${seed}\n`);
 console.log(`Task (the simulator's): two options, reward probabilities ${D.rewardProbs.join(' / ')}, reversal every ${D.blockTrials.join('–')} trials (uniform).`);
 console.log(`Simulator default agent: α ${DEF.alpha}, β ${DEF.beta}, α_C ${DEF.alphaC}, β_C ${DEF.betaC} (Q0 = C0 = 0).`);
-console.log('Estimators: ML = maximum likelihood; MAP = priors \'weakly-informative\' (Beta(1.1, 1.1) on α and α_C, Gamma(1.2, scale 5) on β, Normal(0, 5) on β_C; Daw 2011).');
+console.log('Estimators: ML = maximum likelihood; MAP = priors \'weakly-informative\' (Beta(1.1, 1.1) on α and α_C, Gamma(1.2, scale 5) on β, Normal(0, 5) on β_C; Daw 2011); EB = empirical Bayes (parameterRecovery estimator \'empirical-bayes\' = fitChoicePopulation: a Gaussian population prior on logit α, logit(β/50), logit α_C, logit((β_C + 20)/40) fitted by EM with Laplace posteriors across the agents of the population, initialised from the MAP fits; each agent\'s estimate is its posterior mode; Huys et al. 2011).');
 console.log('A correlation across agents needs a spread of true parameters, so "at the simulator\'s default parameters" is read as populations centred on them (rows "centred", "narrow"); the per-trial RPE/APE criterion is also checked at exactly the defaults (section 3).\n');
 console.log('Populations:\n');
 for (const p of POPULATIONS) console.log(`- **${p.key}** — ${p.label}: ${p.why}. Ranges: ${NAMES.map((n) => `${n} ${rangeText(p.ranges[n] ?? RECOVERY_RANGES[n])}`).join(', ')}.`);
@@ -153,44 +161,58 @@ console.log('');
 
 // ---- 1. parameter recovery on the simulator's task --------------------------------------------
 console.log(`## 1. Parameter recovery, combined model 'q-ck', ${nTrials} trials (simulateChoices on the simulator's task)\n`);
-console.log('"ceiling" = approximate information ceiling of r from the fits\' standard errors (see the script): r near it means the data, not the estimator, limit recovery.\n');
+console.log('"ceiling" = approximate information ceiling of r from the fits\' standard errors (see the script): r near it means the data, not the estimator, limit recovery. It is not computed for EB, whose SDs are posterior SDs that already include the population prior.\n');
 const mapByPopulation = new Map<string, ParameterRecovery>();
+const ebByPopulation = new Map<string, ParameterRecovery>();
 for (const pop of POPULATIONS) {
   console.log(`### ${pop.label}\n`);
   console.log('| parameter | true range | estimator | Pearson r | Spearman ρ | bias | RMSE | fits at bound | ceiling | r ≥ 0.9 |\n|---|---|---|---|---|---|---|---|---|---|');
   const notes: string[] = [];
   const rows: string[][] = NAMES.map(() => []);
-  for (const est of ESTIMATORS) {
+  for (const est of RECOVERY_ESTIMATORS) {
     const t0 = performance.now();
-    const res = await parameterRecovery({ model: 'q-ck', nAgents, nTrials, starts, workers, seed, ranges: pop.ranges, drawScale: pop.drawScale, priors: est.priors });
+    const res = await parameterRecovery({ model: 'q-ck', nAgents, nTrials, starts, workers, seed, ranges: pop.ranges, drawScale: pop.drawScale, ...est.options });
     if (est.label === 'MAP') mapByPopulation.set(pop.key, res);
+    if (est.label === 'EB') ebByPopulation.set(pop.key, res);
+    const eb = res.estimator === 'empirical-bayes';
     res.paramNames.forEach((p, j) => {
-      rows[j]!.push(`| ${p} | ${rangeText(res.ranges[j]!)} | ${est.label} | ${f3(res.correlation[j]!)} | ${f3(res.rankCorrelation[j]!)} | ${f3(res.bias[j]!)} | ${f3(res.rmse[j]!)} | ${res.nAtBound[j]} | ${f3(ceiling(res, j))} | ${res.correlation[j]! >= TARGET ? 'yes' : 'no'} |`);
+      rows[j]!.push(`| ${p} | ${rangeText(res.ranges[j]!)} | ${est.label} | ${f3(res.correlation[j]!)} | ${f3(res.rankCorrelation[j]!)} | ${f3(res.bias[j]!)} | ${f3(res.rmse[j]!)} | ${res.nAtBound[j]} | ${eb ? '—' : f3(ceiling(res, j))} | ${res.correlation[j]! >= TARGET ? 'yes' : 'no'} |`);
     });
     const conv = res.converged.reduce((a, b) => a + b, 0);
     const single = Array.from(res.nAtBest).filter((x) => x === 1).length;
-    notes.push(`${est.label}: ${((performance.now() - t0) / 1000).toFixed(1)} s on ${res.workersUsed} thread(s), ${conv}/${nAgents} fits converged, ${single} with a single start at the best; warnings: ${res.warnings.map((w) => w.code).join(', ') || 'none'}`);
+    const em = res.population ? `, EM ${res.population.iterations} iterations (${res.population.converged ? 'converged' : 'NOT converged'}), iBIC ${res.population.ibic.toFixed(1)}` : '';
+    notes.push(`${est.label}: ${((performance.now() - t0) / 1000).toFixed(1)} s on ${res.workersUsed} thread(s)${eb ? ' (per-agent initial fits; the EM on one)' : ''}, ${conv}/${nAgents} fits converged, ${single} with a single start at the best${em}; warnings: ${res.warnings.map((w) => w.code).join(', ') || 'none'}`);
   }
   console.log(rows.flat().join('\n'));
   console.log(`\n${notes.join('. ')}.\n`);
   const res = mapByPopulation.get(pop.key)!;
   console.log('Correlations among the MAP-fitted parameters (true parameters are drawn independently):\n');
   console.log(matrixTable(res.fittedCorrelation, res.paramNames, res.paramNames));
+  const eb = ebByPopulation.get(pop.key)!;
+  const pr = eb.population!.prior;
+  console.log('\nEB: fitted population prior (natural scale) vs the true draw range:\n');
+  console.log('| parameter | true range | prior median | prior 95 % range | prior SD (transformed) | at floor |\n|---|---|---|---|---|---|');
+  pr.paramNames.forEach((p, j) => console.log(`| ${p} | ${rangeText(eb.ranges[j]!)} | ${f3(pr.median[j]!)} | ${rangeText([pr.lower[j]!, pr.upper[j]!])} | ${f3(Math.sqrt(pr.variance[j]!))} | ${pr.atFloor[j] ? 'yes' : 'no'} |`));
+  console.log('\nCorrelations among the EB-fitted parameters:\n');
+  console.log(matrixTable(eb.fittedCorrelation, eb.paramNames, eb.paramNames));
   console.log('');
 }
 
 // ---- 2. trials needed -------------------------------------------------------------------------
 if (scaling.length > 0) {
-  console.log(`## 2. Pearson r against the number of trials (MAP, ${nAgents} agents, same seeds)\n`);
-  console.log(`| population | trials | ${NAMES.join(' | ')} | all ≥ 0.9 |\n|---|---|${NAMES.map(() => '---').join('|')}|---|`);
+  console.log(`## 2. Pearson r against the number of trials (MAP and EB, ${nAgents} agents, same seeds)\n`);
+  console.log(`| population | trials | estimator | ${NAMES.join(' | ')} | all ≥ 0.9 | seconds |\n|---|---|---|${NAMES.map(() => '---').join('|')}|---|---|`);
   for (const key of ['centred', 'narrow']) {
     const pop = POPULATIONS.find((p) => p.key === key)!;
-    const base = mapByPopulation.get(key)!;
-    const rowOf = (T: number, r: ArrayLike<number>) => `| ${key} | ${T} | ${NAMES.map((_, j) => f3(r[j]!)).join(' | ')} | ${Array.from(r).every((x) => x >= TARGET) ? 'yes' : 'no'} |`;
-    console.log(rowOf(nTrials, base.correlation));
+    const rowOf = (T: number, label: string, r: ArrayLike<number>, sec: string) => `| ${key} | ${T} | ${label} | ${NAMES.map((_, j) => f3(r[j]!)).join(' | ')} | ${Array.from(r).every((x) => x >= TARGET) ? 'yes' : 'no'} | ${sec} |`;
+    console.log(rowOf(nTrials, 'MAP', mapByPopulation.get(key)!.correlation, '(section 1)'));
+    console.log(rowOf(nTrials, 'EB', ebByPopulation.get(key)!.correlation, '(section 1)'));
     for (const T of scaling) {
-      const res = await parameterRecovery({ model: 'q-ck', nAgents, nTrials: T, starts, workers, seed, ranges: pop.ranges, drawScale: pop.drawScale, priors: 'weakly-informative' });
-      console.log(rowOf(T, res.correlation));
+      for (const est of RECOVERY_ESTIMATORS.filter((e) => e.label !== 'ML')) {
+        const t0 = performance.now();
+        const res = await parameterRecovery({ model: 'q-ck', nAgents, nTrials: T, starts, workers, seed, ranges: pop.ranges, drawScale: pop.drawScale, ...est.options });
+        console.log(rowOf(T, est.label, res.correlation, ((performance.now() - t0) / 1000).toFixed(1)));
+      }
     }
   }
   console.log('');

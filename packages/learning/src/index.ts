@@ -25,6 +25,8 @@ export { choiceLogLikelihood } from './choice/choice-log-likelihood.js';
 export type { ChoiceLogLikelihood, ChoiceLogLikelihoodOptions } from './choice/choice-log-likelihood.js';
 export { fitChoiceModel, fitEachSession } from './choice/fit-choice-model.js';
 export type { ChoiceModelFit, FitChoiceModelOptions } from './choice/fit-choice-model.js';
+export { fitChoicePopulation } from './choice/fit-choice-population.js';
+export type { ChoicePopulationFit, FitChoicePopulationOptions, GaussianPriorSpec, PopulationPrior } from './choice/fit-choice-population.js';
 export type { FitStarts } from './internal/fit-core.js';
 export { choiceRegressors } from './choice/choice-regressors.js';
 export type { ChoiceRegressors, ChoiceRegressorsOptions } from './choice/choice-regressors.js';
@@ -36,7 +38,7 @@ export type { ReversalSchedule, ReversalScheduleOptions } from './choice/reversa
 
 // Validation (Wilson & Collins 2019)
 export { parameterRecovery } from './recovery/parameter-recovery.js';
-export type { ParameterRecovery, ParameterRecoveryOptions } from './recovery/parameter-recovery.js';
+export type { ParameterRecovery, ParameterRecoveryOptions, RecoveryPopulation } from './recovery/parameter-recovery.js';
 export { modelRecovery } from './recovery/model-recovery.js';
 export type { ModelRecovery, ModelRecoveryOptions } from './recovery/model-recovery.js';
 export { RECOVERY_RANGES } from './recovery/recovery-options.js';

@@ -64,6 +64,32 @@ describe('parameterRecovery', () => {
     expect(Array.from(ml.truth.data)).toEqual(Array.from(map.truth.data)); // same agents, only the estimator differs
   });
 
+  it("parameterRecovery with estimator 'empirical-bayes' fits a population prior, identically on 2 worker threads and on 1", async () => {
+    const opts = { model: 'q', nAgents: 6, nTrials: 200, starts: 3, seed: 4, estimator: 'empirical-bayes' } as const;
+    const serial = await parameterRecovery(opts);
+    const parallel = await parameterRecovery({ ...opts, workers: 2 });
+    expect(parallel.workersUsed).toBe(2);
+    expect(serial.estimator).toBe('empirical-bayes');
+    expect(serial.population).not.toBeNull();
+    expect(serial.population!.converged).toBe(true);
+    expect(serial.population!.prior.paramNames).toEqual(['alpha', 'beta']);
+    expect(serial.priors).toEqual([WEAK_PRIORS.alpha, WEAK_PRIORS.beta]); // initial fits: weakly informative unless given
+    expect(Array.from(parallel.fitted.data)).toEqual(Array.from(serial.fitted.data));
+    expect(Array.from(parallel.population!.prior.mean)).toEqual(Array.from(serial.population!.prior.mean));
+    expect(parallel.population!.ibic).toBe(serial.population!.ibic);
+    // Same simulated agents as the per-agent estimator: only the refit differs.
+    const perAgent = await parameterRecovery({ ...opts, estimator: 'per-agent' });
+    expect(Array.from(perAgent.truth.data)).toEqual(Array.from(serial.truth.data));
+    expect(perAgent.population).toBeNull();
+    expect(perAgent.estimator).toBe('per-agent');
+  });
+
+  it("parameterRecovery rejects EM settings without estimator 'empirical-bayes' and an unknown estimator", async () => {
+    await expect(parameterRecovery({ model: 'q', nAgents: 3, empiricalBayes: { maxIterations: 5 } })).rejects.toMatchObject({ code: 'TF_BAD_OPTION' });
+    await expect(parameterRecovery({ model: 'q', nAgents: 3, estimator: 'hierarchical' as never })).rejects.toMatchObject({ code: 'TF_BAD_OPTION' });
+    await expect(parameterRecovery({ model: 'q', nAgents: 3, estimator: 'empirical-bayes', empiricalBayes: { tol: 1 } as never })).rejects.toMatchObject({ code: 'TF_UNKNOWN_OPTION' });
+  });
+
   it('parameterRecovery rejects a draw range outside the parameter domain', async () => {
     await expect(parameterRecovery({ model: 'q', nAgents: 3, ranges: { alpha: [0.5, 1.5] } })).rejects.toMatchObject({ code: 'TF_BAD_OPTION' });
   });

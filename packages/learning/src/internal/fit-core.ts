@@ -6,7 +6,7 @@ import { whereRow } from '../choice/data.js';
 import type { ChoiceParamName, ModelStructure, ParamTransform } from '../choice/model.js';
 import type { ParamPrior } from '../choice/priors.js';
 import { bfgs } from './bfgs.js';
-import type { BfgsStop } from './bfgs.js';
+import type { BfgsStop, Objective } from './bfgs.js';
 import { ChoiceEngine, compileModel } from './choice-engine.js';
 import { inverseSpd } from './linalg.js';
 import { logPriorSum } from './priors.js';
@@ -92,7 +92,8 @@ export interface CoreFit {
   readonly warnings: ResultWarning[];
 }
 
-function drawStart(random: Rng, name: ChoiceParamName, range: readonly [number, number], tr: Transform): number {
+/** One start value of parameter `name`, drawn from `range` (β log-uniform), kept strictly inside the bounds. */
+export function drawStart(random: Rng, name: ChoiceParamName, range: readonly [number, number], tr: Transform): number {
   const [lo, hi] = range;
   const u = random.uniform();
   let v = name === 'beta' && lo > 0 ? Math.exp(Math.log(lo) + u * (Math.log(hi) - Math.log(lo))) : lo + u * (hi - lo);
@@ -101,6 +102,66 @@ function drawStart(random: Rng, name: ChoiceParamName, range: readonly [number, 
   if (Number.isFinite(tr.lo) && v <= tr.lo + w) v = tr.lo + w;
   if (Number.isFinite(tr.hi) && v >= tr.hi - w) v = tr.hi - w;
   return v;
+}
+
+/**
+ * The minimised objective on the transformed scale φ, filling ∂/∂φ: NLL(θ(φ)) for ML, or
+ * NLL(θ(φ)) − Σ log p(θ_j(φ_j)) with `priors` (densities on the natural scale, so the mode does not
+ * depend on the optimisation transform). Infinity where the likelihood or a prior is not finite.
+ */
+export function phiObjective(engine: ChoiceEngine, d: PreparedChoices, transforms: readonly Transform[], priors: readonly (ParamPrior | null)[]): Objective {
+  const k = transforms.length;
+  const theta = new Float64Array(k);
+  const gTheta = new Float64Array(k);
+  const slope = new Float64Array(k);
+  const map = priors.some((p) => p !== null);
+  return (phi: Float64Array, g: Float64Array): number => {
+    for (let j = 0; j < k; j++) theta[j] = toNatural(transforms[j]!, phi[j]!);
+    let f = engine.nll(d, theta, gTheta, null);
+    if (!Number.isFinite(f)) return Infinity;
+    if (map) {
+      slope.fill(0);
+      f -= logPriorSum(priors, theta, slope);
+      if (!Number.isFinite(f)) return Infinity;
+      for (let j = 0; j < k; j++) gTheta[j] = gTheta[j]! - slope[j]!;
+    }
+    for (let j = 0; j < k; j++) g[j] = gTheta[j]! * jacobian(transforms[j]!, phi[j]!);
+    return f;
+  };
+}
+
+/**
+ * Central-difference Hessian (of the analytic gradient) of `objective` at `phi` over the
+ * coordinates `free` (kf × kf, row-major, symmetrised), with step `relStep`·max(1, |φ_j|).
+ * `finite` is false when an evaluation was not finite.
+ */
+export function centralHessian(objective: Objective, phi0: Float64Array, free: readonly number[], relStep: number): { hmat: Float64Array; finite: boolean } {
+  const k = phi0.length;
+  const kf = free.length;
+  const hmat = new Float64Array(kf * kf);
+  const gp = new Float64Array(k);
+  const gm = new Float64Array(k);
+  const phi = Float64Array.from(phi0);
+  let finite = true;
+  for (let b = 0; b < kf; b++) {
+    const j = free[b]!;
+    const step = relStep * Math.max(1, Math.abs(phi0[j]!));
+    phi[j] = phi0[j]! + step;
+    const fp = objective(phi, gp);
+    phi[j] = phi0[j]! - step;
+    const fm = objective(phi, gm);
+    phi[j] = phi0[j]!;
+    if (!Number.isFinite(fp) || !Number.isFinite(fm)) finite = false;
+    for (let a = 0; a < kf; a++) hmat[a * kf + b] = (gp[free[a]!]! - gm[free[a]!]!) / (2 * step);
+  }
+  for (let a = 0; a < kf; a++) {
+    for (let b = 0; b < a; b++) {
+      const v = 0.5 * (hmat[a * kf + b]! + hmat[b * kf + a]!);
+      hmat[a * kf + b] = v;
+      hmat[b * kf + a] = v;
+    }
+  }
+  return { hmat, finite };
 }
 
 /**
@@ -117,25 +178,9 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
   const engine = new ChoiceEngine(compileModel(m), d.nOptions);
   const transforms = settings.bounds.map(([lo, hi]) => transformFor(lo, hi));
   const theta = new Float64Array(k);
-  const gTheta = new Float64Array(k);
   const priors = settings.priors;
   const map = priors.some((p) => p !== null);
-  const slope = new Float64Array(k);
-  // ML: NLL(θ(φ)). MAP: NLL(θ(φ)) − Σ log p(θ_j(φ_j)), the prior a density on the natural scale
-  // (so the mode does not depend on the optimisation transform).
-  const objective = (phi: Float64Array, g: Float64Array): number => {
-    for (let j = 0; j < k; j++) theta[j] = toNatural(transforms[j]!, phi[j]!);
-    let f = engine.nll(d, theta, gTheta, null);
-    if (!Number.isFinite(f)) return Infinity;
-    if (map) {
-      slope.fill(0);
-      f -= logPriorSum(priors, theta, slope);
-      if (!Number.isFinite(f)) return Infinity;
-      for (let j = 0; j < k; j++) gTheta[j] = gTheta[j]! - slope[j]!;
-    }
-    for (let j = 0; j < k; j++) g[j] = gTheta[j]! * jacobian(transforms[j]!, phi[j]!);
-    return f;
-  };
+  const objective = phiObjective(engine, d, transforms, priors);
   const warnings: ResultWarning[] = [...d.warnings];
   const nStarts = k === 0 ? 1 : settings.starts;
   const initial = new Float64Array(nStarts * k);
@@ -198,29 +243,7 @@ export function fitPrepared(fn: string, m: ModelStructure, d: PreparedChoices, s
   const cov = new Float64Array(k * k).fill(NaN);
   let hessian: CoreFit['hessian'] = 'none';
   if (kf > 0) {
-    const hmat = new Float64Array(kf * kf);
-    const gp = new Float64Array(k);
-    const gm = new Float64Array(k);
-    const phi = Float64Array.from(bestPhi);
-    let finite = true;
-    for (let b = 0; b < kf; b++) {
-      const j = free[b]!;
-      const step = settings.hessianStep * Math.max(1, Math.abs(bestPhi[j]!));
-      phi[j] = bestPhi[j]! + step;
-      const fp = objective(phi, gp);
-      phi[j] = bestPhi[j]! - step;
-      const fm = objective(phi, gm);
-      phi[j] = bestPhi[j]!;
-      if (!Number.isFinite(fp) || !Number.isFinite(fm)) finite = false;
-      for (let a = 0; a < kf; a++) hmat[a * kf + b] = (gp[free[a]!]! - gm[free[a]!]!) / (2 * step);
-    }
-    for (let a = 0; a < kf; a++) {
-      for (let b = 0; b < a; b++) {
-        const v = 0.5 * (hmat[a * kf + b]! + hmat[b * kf + a]!);
-        hmat[a * kf + b] = v;
-        hmat[b * kf + a] = v;
-      }
-    }
+    const { hmat, finite } = centralHessian(objective, bestPhi, free, settings.hessianStep);
     const inv = finite ? inverseSpd(hmat, kf) : null;
     if (inv === null) {
       hessian = 'not-positive-definite';

@@ -29,6 +29,8 @@ export interface RecoveryTask {
   /** Candidate models fitted to every agent, with their settings. */
   readonly candidates: readonly ModelStructure[];
   readonly settings: readonly FitSettings[];
+  /** Return each agent's simulated choices and outcomes (for a population fit after the per-agent fits). */
+  readonly keepData?: boolean;
 }
 
 export interface AgentFit {
@@ -47,6 +49,27 @@ export interface AgentResult {
   readonly generator: number;
   readonly truth: Float64Array;
   readonly fits: readonly AgentFit[];
+  /** The simulated session (with `keepData`): choices, outcomes and the number of options. */
+  readonly data?: { readonly choice: Int32Array; readonly reward: Float64Array; readonly nOptions: number };
+}
+
+/** One simulated session in the prepared form the fitting kernels take. */
+export function singleSession(choice: Int32Array, reward: Float64Array, nOptions: number): PreparedChoices {
+  const n = choice.length;
+  const trial = new Int32Array(n);
+  for (let t = 0; t < n; t++) trial[t] = t;
+  return {
+    nOptions,
+    nSessions: 1,
+    sessionStart: Int32Array.of(0, n),
+    session: new Int32Array(n),
+    trial,
+    choice,
+    reward,
+    nChoices: n,
+    nSkipped: 0,
+    warnings: [],
+  };
 }
 
 /** A value uniform on the unbounded scale of `name` between lo and hi (u ∈ [0, 1)). */
@@ -79,23 +102,10 @@ export function runAgent(task: RecoveryTask, agent: number): AgentResult {
   const choice = new Int32Array(n);
   const reward = new Float64Array(n);
   new ChoiceEngine(compileModel(gm), K).simulate(truth, schedule.data, n, root.stream(2), choice, reward);
-  const trial = new Int32Array(n);
-  for (let t = 0; t < n; t++) trial[t] = t;
-  const d: PreparedChoices = {
-    nOptions: K,
-    nSessions: 1,
-    sessionStart: Int32Array.of(0, n),
-    session: new Int32Array(n),
-    trial,
-    choice,
-    reward,
-    nChoices: n,
-    nSkipped: 0,
-    warnings: [],
-  };
+  const d = singleSession(choice, reward, K);
   const fits = task.candidates.map((cm, c) => {
     const f = fitPrepared('recovery', cm, d, task.settings[c]!, root.stream(3 + c));
     return { estimates: f.estimates, se: f.se, nll: f.nll, aic: f.aic, bic: f.bic, nAtBest: f.nAtBest, converged: f.converged, atBound: f.atBound };
   });
-  return { agent, generator, truth, fits };
+  return task.keepData ? { agent, generator, truth, fits, data: { choice, reward, nOptions: K } } : { agent, generator, truth, fits };
 }

@@ -1,9 +1,14 @@
-import { TuningforkError, checkInteger, checkOneOf, resolveOptions } from '@tuningfork/core';
+import { TuningforkError, checkInteger, checkOneOf, resolveOptions, rng } from '@tuningfork/core';
 import type { Matrix, ResultWarning } from '@tuningfork/core';
 import { PARAM_DOMAIN, resolveModel } from '../choice/model.js';
 import type { ChoicePriors, ParamPrior } from '../choice/priors.js';
 import type { ChoiceModel, ChoiceParamName, ModelStructure } from '../choice/model.js';
+import { EM_DEFAULTS, checkEmOptions, integratedBic, populationPrior } from '../choice/fit-choice-population.js';
+import type { PopulationPrior } from '../choice/fit-choice-population.js';
 import { resolveFitSettings } from '../internal/fit-settings.js';
+import { runPopulationEm } from '../internal/population-em.js';
+import type { EmOutcome } from '../internal/population-em.js';
+import { singleSession } from '../internal/recovery-agents.js';
 import { runAgents } from '../internal/recovery-runner.js';
 import { checkReversal, checkSchedule, drawRanges } from './recovery-options.js';
 
@@ -52,9 +57,26 @@ export interface ParameterRecoveryOptions {
   startRanges?: Ranges;
   /**
    * Priors of the refits (see fitChoiceModel): 'none' (maximum likelihood), 'weakly-informative'
-   * or a prior per parameter. @defaultValue 'none'
+   * or a prior per parameter. With estimator 'empirical-bayes' they are the priors of the initial
+   * per-agent fits (fitChoicePopulation `initialPriors`), 'weakly-informative' unless given.
+   * @defaultValue 'none' ('weakly-informative' with estimator 'empirical-bayes')
    */
   priors?: ChoicePriors;
+  /**
+   * How the agents are refitted: `'per-agent'`, each on its own (ML, or MAP with `priors`), or
+   * `'empirical-bayes'`, all together as by fitChoicePopulation — a Gaussian population prior on the
+   * transformed parameters fitted by EM across the simulated agents, each agent's estimate its
+   * posterior mode under that prior (`se`: Laplace posterior SDs). The per-agent fits run on
+   * `workers` threads; the EM then runs on this thread.
+   * @defaultValue 'per-agent'
+   */
+  estimator?: 'per-agent' | 'empirical-bayes';
+  /**
+   * EM settings of estimator 'empirical-bayes' (see fitChoicePopulation): `maxIterations`,
+   * `tolerance`, `likelihoodTolerance`, `varianceFloor`.
+   * @defaultValue {} (maxIterations 200, tolerance 1e-4, likelihoodTolerance 1e-3, varianceFloor 1e-3)
+   */
+  empiricalBayes?: { maxIterations?: number; tolerance?: number; likelihoodTolerance?: number; varianceFloor?: number };
   /** Seed: agent i draws everything from `rng(seed).stream(i)`. @defaultValue 0 */
   seed?: number;
   /** Worker threads (1 = this thread). Results do not depend on it. @defaultValue 1 */
@@ -74,9 +96,22 @@ const DEFAULTS = Object.freeze({
   bounds: Object.freeze({}) as Ranges,
   startRanges: Object.freeze({}) as Ranges,
   priors: 'none' as ChoicePriors,
+  estimator: 'per-agent' as 'per-agent' | 'empirical-bayes',
+  empiricalBayes: Object.freeze({}) as { maxIterations?: number; tolerance?: number; likelihoodTolerance?: number; varianceFloor?: number },
   seed: 0,
   workers: 1,
 });
+
+/** The population fit of estimator 'empirical-bayes'. */
+export interface RecoveryPopulation {
+  /** The fitted population prior (transformed scale and natural-scale summaries). */
+  readonly prior: PopulationPrior;
+  readonly iterations: number;
+  readonly converged: boolean;
+  /** Σ of the agents' Laplace log marginal likelihoods, and the integrated BIC. */
+  readonly logMarginalLikelihood: number;
+  readonly ibic: number;
+}
 
 /** Result of {@link parameterRecovery}. Per-parameter arrays follow `paramNames`. */
 export interface ParameterRecovery {
@@ -108,8 +143,14 @@ export interface ParameterRecovery {
   readonly converged: Uint8Array;
   readonly ranges: readonly (readonly [number, number])[];
   readonly drawScale: 'natural' | 'unbounded';
-  /** Prior of each parameter in the refits (null = flat; all null = maximum likelihood). */
+  /**
+   * Prior of each parameter in the refits (null = flat; all null = maximum likelihood); with
+   * estimator 'empirical-bayes', of the initial per-agent fits.
+   */
   readonly priors: readonly (ParamPrior | null)[];
+  readonly estimator: 'per-agent' | 'empirical-bayes';
+  /** The population fit (estimator 'empirical-bayes'), else null. */
+  readonly population: RecoveryPopulation | null;
   readonly nAgents: number;
   readonly seed: number;
   readonly workersUsed: number;
@@ -158,7 +199,8 @@ function columnCorrelation(a: Matrix, i: number, b: Matrix, j: number): number {
  * Parameter recovery: simulate agents with known parameters, refit, and compare.
  *
  * Each agent draws its parameters uniformly from `ranges` (on the natural or the unbounded scale), plays `schedule` (or its own reversal
- * schedule), and is refitted by maximum likelihood, or MAP with `priors` (`starts` starts). Reports per parameter the
+ * schedule), and is refitted by maximum likelihood, or MAP with `priors` (`starts` starts), or — with `estimator:
+ * 'empirical-bayes'` — by the hierarchical fit of fitChoicePopulation across all agents. Reports per parameter the
  * true–fitted correlation, bias and RMSE, and the correlations among fitted parameters (a strong
  * α–β correlation flags a trade-off). Agent i uses only `rng(seed).stream(i)`, so `workers` > 1
  * splits agents across threads (node:worker_threads) with results identical to a serial run.
@@ -193,6 +235,12 @@ export async function parameterRecovery(options: ParameterRecoveryOptions = {}):
       }
     });
   }
+  const estimator = checkOneOf(fn, 'estimator', o.estimator, ['per-agent', 'empirical-bayes'] as const);
+  const eb = estimator === 'empirical-bayes';
+  const emSettings = checkEmOptions(`${fn}: empiricalBayes`, resolveOptions(`${fn}: empiricalBayes`, EM_DEFAULTS, o.empiricalBayes));
+  if (!eb && Object.keys(o.empiricalBayes).length > 0) {
+    throw new TuningforkError('TF_BAD_OPTION', `${fn}: empiricalBayes settings apply to estimator 'empirical-bayes' only; estimator is '${estimator}'.`, { fn, option: 'empiricalBayes' });
+  }
   const settings = resolveFitSettings(fn, m, {
     bounds: o.bounds,
     startRanges: o.startRanges,
@@ -202,10 +250,18 @@ export async function parameterRecovery(options: ParameterRecoveryOptions = {}):
     bestTolerance: 1e-6,
     hessianStep: 1e-5,
     boundTolerance: 1e-4,
-    priors: o.priors,
+    priors: eb && options.priors === undefined ? 'weakly-informative' : o.priors,
   });
-  const task = { seed, nTrials, schedule, rewardProbs: probs, blockTrials: blocks, generators: [m], ranges: [ranges], drawScale, agentsPerGenerator: nAgents, candidates: [m], settings: [settings] };
+  const task = { seed, nTrials, schedule, rewardProbs: probs, blockTrials: blocks, generators: [m], ranges: [ranges], drawScale, agentsPerGenerator: nAgents, candidates: [m], settings: [settings], keepData: eb };
   const run = await runAgents(fn, task, nAgents, workers);
+  let em: EmOutcome | null = null;
+  if (eb) {
+    const byAgent = [...run.results].sort((a, b) => a.agent - b.agent);
+    // Agent i's first-E-step starts draw from rng(seed).stream(i).stream(4): streams 0–3 are its draws,
+    // schedule, choices and per-agent fit.
+    const agents = byAgent.map((r) => ({ data: singleSession(r.data!.choice, r.data!.reward, r.data!.nOptions), initial: r.fits[0]!.estimates, random: rng(seed).stream(r.agent).stream(4) }));
+    em = runPopulationEm(fn, m, agents, { fit: settings, ...emSettings }, null);
+  }
   const k = m.params.length;
   const truth = new Float64Array(nAgents * k);
   const fitted = new Float64Array(nAgents * k);
@@ -216,18 +272,27 @@ export async function parameterRecovery(options: ParameterRecoveryOptions = {}):
   for (const r of run.results) {
     const f = r.fits[0]!;
     truth.set(r.truth, r.agent * k);
+    if (em) continue;
     fitted.set(f.estimates, r.agent * k);
     se.set(f.se, r.agent * k);
     nll[r.agent] = f.nll;
     nAtBest[r.agent] = f.nAtBest;
     converged[r.agent] = f.converged ? 1 : 0;
   }
+  if (em) {
+    fitted.set(em.estimates);
+    se.set(em.se);
+    nll.set(em.nll);
+    nAtBest.set(em.nAtBest);
+    converged.set(em.agentConverged);
+  }
   const T = { data: truth, rows: nAgents, cols: k };
   const F = { data: fitted, rows: nAgents, cols: k };
   const correlation = new Float64Array(k);
   const rankCorrelation = new Float64Array(k);
   const nAtBound = new Int32Array(k);
-  for (const r of run.results) r.fits[0]!.atBound.forEach((b, j) => (nAtBound[j] = nAtBound[j]! + b));
+  if (em) em.atBound.forEach((b, i) => (nAtBound[i % k] = nAtBound[i % k]! + b));
+  else for (const r of run.results) r.fits[0]!.atBound.forEach((b, j) => (nAtBound[j] = nAtBound[j]! + b));
   const bias = new Float64Array(k);
   const rmse = new Float64Array(k);
   const fc = new Float64Array(k * k);
@@ -249,9 +314,9 @@ export async function parameterRecovery(options: ParameterRecoveryOptions = {}):
       tc[j * k + i] = i === j ? 1 : columnCorrelation(T, j, T, i);
     }
   }
-  const warnings = [...run.warnings];
+  const warnings = [...run.warnings, ...(em ? em.warnings : [])];
   const nc = nAgents - converged.reduce((s, x) => s + x, 0);
-  if (nc > 0) warnings.push({ code: 'fits-not-converged', message: `${fn}: ${nc} of ${nAgents} fits did not meet the gradient tolerance.`, details: { count: nc } });
+  if (nc > 0 && !em) warnings.push({ code: 'fits-not-converged', message: `${fn}: ${nc} of ${nAgents} fits did not meet the gradient tolerance.`, details: { count: nc } });
   return {
     model: m,
     paramNames: m.params,
@@ -271,6 +336,8 @@ export async function parameterRecovery(options: ParameterRecoveryOptions = {}):
     ranges,
     drawScale,
     priors: settings.priors,
+    estimator,
+    population: em ? { prior: populationPrior(m, em, settings.bounds), iterations: em.iterations, converged: em.converged, logMarginalLikelihood: em.logMarginalLikelihood, ibic: integratedBic(em, k) } : null,
     nAgents,
     seed,
     workersUsed: run.workersUsed,
