@@ -41,7 +41,7 @@ export type {
 export { writeFileAtomic } from './write/write-file-atomic.js';
 export type { AtomicData, WriteFileAtomicOptions, WriteResult } from './write/write-file-atomic.js';
 export { writeCsv } from './write/write-csv.js';
-export { formatCsv, formatNumber } from './write/format-csv.js';
+export { formatCsv, formatCsvChunks, formatNumber } from './write/format-csv.js';
 export type { CsvWriteOptions } from './write/format-csv.js';
 export { writeJson } from './write/write-json.js';
 export type { WriteJsonOptions } from './write/write-json.js';

@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
 import { here, loadFixture } from '@tuningfork/test-utils';
-import { formatCsv, formatNumber, parseCsv, readCsv, writeCsv, writeFileAtomic, writeJson } from '../src/index.js';
+import { formatCsv, formatCsvChunks, formatNumber, parseCsv, readCsv, writeCsv, writeFileAtomic, writeJson } from '../src/index.js';
 
 const fixtures = join(here(import.meta.url), 'fixtures');
 const tmp = mkdtempSync(join(tmpdir(), 'tf-io-write-'));
@@ -117,6 +117,21 @@ describe('formatCsv', () => {
     expect(formatCsv({ t: new Float64Array([0, 0.1]), x: new Float64Array([NaN, -0]) })).toBe('t,x\n0,\n0.1,-0\n');
     expect(formatCsv({ id: ['#1', 'a'], n: new Int32Array([1, 2]) }, { header: false, delimiter: '\t' })).toBe('"#1"\t1\na\t2\n');
     expect(() => formatCsv({ a: new Float64Array(2), b: ['x'] })).toThrow(code('TF_SHAPE_MISMATCH'));
+  });
+});
+
+describe('formatCsvChunks', () => {
+  it('formatCsvChunks yields chunks of about 1 MiB that concatenate to formatCsv, and checks options at once', () => {
+    const n = 120_000;
+    const data = { t: Float64Array.from({ length: n }, (_, i) => i / 1000), x: Float64Array.from({ length: n }, (_, i) => Math.sin(i) * 1e-3), tag: Array.from({ length: n }, (_, i) => (i % 7 === 0 ? 'a,"b"' : 'c')) };
+    const chunks = [...formatCsvChunks(data, { lineEnding: '\r\n' })];
+    expect(chunks.length).toBeGreaterThan(2);
+    for (const c of chunks.slice(0, -1)) {
+      expect(c.length).toBeGreaterThanOrEqual(1 << 20);
+      expect(c.endsWith('\r\n')).toBe(true); // chunks end on a line break
+    }
+    expect(chunks.join('')).toBe(formatCsv(data, { lineEnding: '\r\n' }));
+    expect(() => formatCsvChunks(data, { delimiter: '|' as ',' })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
   });
 });
 

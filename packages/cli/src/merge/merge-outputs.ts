@@ -3,7 +3,7 @@ import { join, relative, sep } from 'node:path';
 import { canonicalJson, makeProvenance, TuningforkError, VERSION } from '@tuningfork/core';
 import { batchReport } from '@tuningfork/report';
 import type { TuningCell } from '@tuningfork/report';
-import { formatCsv, readArrow, writeFileAtomic } from '@tuningfork/io';
+import { formatCsvChunks, readArrow, writeFileAtomic } from '@tuningfork/io';
 import type { ArrowTable } from '@tuningfork/io';
 import { encodeMergedArrow } from '../internal/merged-arrow.js';
 import type { MergedKind, MergedPart } from '../internal/merged-arrow.js';
@@ -135,7 +135,7 @@ export async function mergeOutputs(jobs: readonly SessionJob[], outRoot: string)
           for (const f of order) {
             data[f] = kinds.get(f) === 'string' ? (p.strings[f] ?? new Array<string>(p.rows).fill('')) : (p.numbers[f] ?? new Float64Array(p.rows).fill(NaN));
           }
-          yield formatCsv(data, { header: first });
+          yield* formatCsvChunks(data, { header: first });
           first = false;
         }
       };

@@ -88,6 +88,18 @@ export function* csvChunks(fn: string, data: ColumnData, o: Required<CsvWriteOpt
 }
 
 /**
+ * The CSV text of a table as consecutive strings of about 1 MiB each, for streaming a large table
+ * (to a file, a socket, or writeFileAtomic) without building it as one string. Concatenated, the
+ * chunks equal formatCsv(data, options); the options are checked at once, the columns when the
+ * first chunk is taken.
+ *
+ * @throws {TuningforkError} as formatCsv.
+ */
+export function formatCsvChunks(data: ColumnData, options: CsvWriteOptions = {}): Generator<string> {
+  return csvChunks('formatCsvChunks', data, resolveCsvWriteOptions('formatCsvChunks', options));
+}
+
+/**
  * Format a columnar table as CSV text (for small tables; writeCsv streams large ones).
  *
  * Numbers use the shortest text that reads back as the same double (JavaScript's
