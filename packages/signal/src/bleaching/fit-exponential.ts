@@ -53,6 +53,37 @@ export function evaluateExponential(fit: Pick<ExponentialFit, 'a' | 'tau1' | 'b'
   return v;
 }
 
+/** Σ a_i·b_i over i < n. */
+function dotN(a: Float64Array, b: Float64Array, n: number): number {
+  let s = 0;
+  for (let i = 0; i < n; i++) s += a[i]! * b[i]!;
+  return s;
+}
+
+/**
+ * Residual sum of squares of the (double) exponential at θ = (a, ln τ1, [b, ln τ2,] c) on times u,
+ * writing the basis values to o1, o2 and the residuals to orr. Module-level (not a closure per
+ * call) so optimised callers keep their code from one call to the next.
+ */
+function modelCost(th: Float64Array, u: Float64Array, yy: Float64Array, m: number, double: boolean, o1: Float64Array, o2: Float64Array, orr: Float64Array): number {
+  const t1 = Math.exp(th[1]!);
+  const t2 = double ? Math.exp(th[3]!) : 1;
+  const A = th[0]!;
+  const Bm = double ? th[2]! : 0;
+  const C = double ? th[4]! : th[2]!;
+  let s = 0;
+  for (let i = 0; i < m; i++) {
+    const a1 = Math.exp(-u[i]! / t1);
+    const a2 = double ? Math.exp(-u[i]! / t2) : 0;
+    o1[i] = a1;
+    o2[i] = a2;
+    const r = yy[i]! - (A * a1 + Bm * a2 + C);
+    orr[i] = r;
+    s += r * r;
+  }
+  return s;
+}
+
 /**
  * Fit a single or double exponential decay with a constant by bounded nonlinear least squares.
  *
@@ -142,12 +173,7 @@ export function fitExponentialDecay(t: ArrayLike<number>, y: ArrayLike<number>, 
     sumE[g] = s1;
     sumEy[g] = s2;
   }
-  const dot = (a: Float64Array, b2: Float64Array): number => {
-    let s = 0;
-    for (let i = 0; i < gm; i++) s += a[i]! * b2[i]!;
-    return s;
-  };
-  const selfDot = Float64Array.from(basis, (e) => dot(e, e));
+  const selfDot = Float64Array.from(basis, (e) => dotN(e, e, gm));
   let bestRss = Infinity;
   let start = [0, tauMin, 0, tauMax, 0];
   for (let g1 = 0; g1 < gridSize; g1++) {
@@ -161,7 +187,7 @@ export function fitExponentialDecay(t: ArrayLike<number>, y: ArrayLike<number>, 
       continue;
     }
     for (let g2 = g1 + 1; g2 < gridSize; g2++) {
-      const x12 = dot(basis[g1]!, basis[g2]!);
+      const x12 = dotN(basis[g1]!, basis[g2]!, gm);
       const G = Float64Array.of(
         selfDot[g1]!, x12, sumE[g1]!,
         x12, selfDot[g2]!, sumE[g2]!,
@@ -179,11 +205,13 @@ export function fitExponentialDecay(t: ArrayLike<number>, y: ArrayLike<number>, 
   const lnMin = Math.log(tauMin);
   const lnMax = Math.log(tauMax);
   const np = double ? 5 : 3;
+  // Float64Arrays (not arrays) so the element kind never changes between calls: a change would
+  // throw away this large function's optimised code.
   let theta = double
-    ? [start[0]!, Math.log(start[1]!), start[2]!, Math.log(start[3]!), start[4]!]
-    : [start[0]!, Math.log(start[1]!), start[4]!];
-  const lower = double ? [0, lnMin, 0, lnMin, -Infinity] : [0, lnMin, -Infinity];
-  const upper = double ? [Infinity, lnMax, Infinity, lnMax, Infinity] : [Infinity, lnMax, Infinity];
+    ? Float64Array.of(start[0]!, Math.log(start[1]!), start[2]!, Math.log(start[3]!), start[4]!)
+    : Float64Array.of(start[0]!, Math.log(start[1]!), start[4]!);
+  const lower = double ? Float64Array.of(0, lnMin, 0, lnMin, -Infinity) : Float64Array.of(0, lnMin, -Infinity);
+  const upper = double ? Float64Array.of(Infinity, lnMax, Infinity, lnMax, Infinity) : Float64Array.of(Infinity, lnMax, Infinity);
   // Current (e1, e2, res) and candidate buffers; swapped when a step is accepted.
   let e1 = new Float64Array(m);
   let e2 = new Float64Array(m);
@@ -191,24 +219,7 @@ export function fitExponentialDecay(t: ArrayLike<number>, y: ArrayLike<number>, 
   let c1 = new Float64Array(m);
   let c2 = new Float64Array(m);
   let cr = new Float64Array(m);
-  const cost = (th: number[], o1: Float64Array, o2: Float64Array, orr: Float64Array): number => {
-    const t1 = Math.exp(th[1]!);
-    const t2 = double ? Math.exp(th[3]!) : 1;
-    const A = th[0]!;
-    const Bm = double ? th[2]! : 0;
-    const C = double ? th[4]! : th[2]!;
-    let s = 0;
-    for (let i = 0; i < m; i++) {
-      const a1 = Math.exp(-u[i]! / t1);
-      const a2 = double ? Math.exp(-u[i]! / t2) : 0;
-      o1[i] = a1;
-      o2[i] = a2;
-      const r = yy[i]! - (A * a1 + Bm * a2 + C);
-      orr[i] = r;
-      s += r * r;
-    }
-    return s;
-  };
+  const cost = (th: Float64Array, o1: Float64Array, o2: Float64Array, orr: Float64Array): number => modelCost(th, u, yy, m, double, o1, o2, orr);
   let f0 = cost(theta, e1, e2, res);
   let lambda = 1e-3;
   let it = 0;
