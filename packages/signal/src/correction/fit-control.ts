@@ -135,7 +135,8 @@ const BISQUARE_HALF = Math.sqrt(1 - Math.SQRT1_2);
 class FusedPass {
   private readonly method: 'huber' | 'bisquare';
   private readonly c: number;
-  private readonly buf: Float64Array;
+  /** Collects |r| inside the median's bracket; free between run() calls (the two-pass median borrows it). */
+  readonly buf: Float64Array;
   /** dx, dy of samples near the weight threshold; |r| of samples near the w = 0.5 threshold. */
   private readonly near: Float64Array;
   private readonly nearLow: Float64Array;
@@ -412,9 +413,8 @@ export function fitControl(signal: ArrayLike<number>, control: ArrayLike<number>
   const olsR2 = syy > 0 ? (sxy * sxy) / (sxx * syy) : NaN;
   const toOrig = (a0: number, b0: number): [number, number] => [my + a0 - b0 * mx, b0];
   let [intercept, slope] = toOrig(ac, b);
-  const buf = new Float64Array(m);
   if (method === 'ols') {
-    const s = medianAbsResidual(x, y, stride, intercept, slope, NaN, 0, buf) / MAD_CONST;
+    const s = medianAbsResidual(x, y, stride, intercept, slope, NaN, 0, new Float64Array(m)) / MAD_CONST;
     return { intercept, slope, method, tuning: NaN, iterations: 0, converged: true, scale: s, nUsed: m, downweighted: 0, olsRSquared: olsR2 };
   }
   let it = 0;
@@ -424,6 +424,7 @@ export function fitControl(signal: ArrayLike<number>, control: ArrayLike<number>
   let s = NaN;
   let low = 0;
   const fused = new FusedPass(method, c, m);
+  const buf = fused.buf;
   while (it < maxIt) {
     it++;
     // With a bracket for the median, one pass over the data yields both the median and the sums
