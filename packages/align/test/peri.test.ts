@@ -161,6 +161,36 @@ describe('periEventMatrix', () => {
     expect(() => periEventMatrix(s, [5, 10], { preSec: 1, postSec: 1, nan: 'error' })).toThrow(expect.objectContaining({ code: 'TF_NON_FINITE' }));
   });
 
+  it('periEventMatrix rows equal a + f·(b − a) sample by sample, and nan-in-window fires exactly when a value is NaN, with ±∞ and NaN in the signal (property)', () => {
+    // Reference: numpy.interp's rule between neighbours (SIGNALS.md §3.6), written out naively here;
+    // guards the unrolled row kernel (remainder columns, NaN detection through ±∞).
+    fc.assert(
+      fc.property(
+        fc.array(fc.oneof(fc.double({ min: -1e3, max: 1e3, noNaN: true }), fc.constantFrom(NaN, Infinity, -Infinity)), { minLength: 30, maxLength: 60 }),
+        fc.integer({ min: 3, max: 12 }),
+        fc.double({ min: 0.01, max: 0.99, noNaN: true }),
+        fc.integer({ min: 0, max: 10 }),
+        (vals, pre, frac, post) => {
+          const x = Float64Array.from(vals);
+          const te = pre + frac; // seconds at 1 Hz: window [te − pre, te + post] stays inside
+          const m = periEventMatrix({ values: x, sampleRate: 1, t0: 0 }, [te], { preSec: pre, postSec: post + 1 });
+          expect(m.rows).toBe(1);
+          let anyNaN = false;
+          const p0 = te - pre; // at the signal's rate the whole row shares one fraction
+          const f = p0 - Math.floor(p0);
+          for (let c = 0; c < m.cols; c++) {
+            const i = Math.floor(p0) + c;
+            const want = x[i]! + f * (x[i + 1]! - x[i]!);
+            expect(Object.is(m.data[c], want) || (Number.isNaN(m.data[c]) && Number.isNaN(want))).toBe(true);
+            if (Number.isNaN(want)) anyNaN = true;
+          }
+          expect(m.warnings.some((w) => w.code === 'nan-in-window')).toBe(anyNaN);
+        },
+      ),
+      { seed: 4, numRuns: 300 },
+    );
+  });
+
   it('periEventMatrix rejects unsorted or duplicate event times (TF_BAD_EVENTS) and windows longer than the recording (TF_WINDOW_OUT_OF_RANGE)', () => {
     const s = { values: new Float64Array(100), sampleRate: 10, t0: 0 };
     expect(() => periEventMatrix(s, [5, 4], { preSec: 1, postSec: 1 })).toThrow(expect.objectContaining({ code: 'TF_BAD_EVENTS', details: expect.objectContaining({ index: 1 }) }));
