@@ -93,7 +93,7 @@ function defaultJobs(): number {
 }
 
 const jobsOption = () =>
-  new Option('-j, --jobs <n>', 'sessions analysed at once, each in its own worker thread (1 = one after another in this process)')
+  new Option('-j, --jobs <n>', 'sessions analysed at once, each in its own child process (1 = one after another in this process)')
     .argParser(intArg('--jobs', 1, 1024))
     .default(defaultJobs(), 'number of cores, or SLURM_CPUS_PER_TASK');
 const pipelineOption = () =>

@@ -59,7 +59,7 @@ describe('tuningfork run (batch)', () => {
     expect(existsSync(join(root, 'serial/.staging'))).toBe(false);
   });
 
-  it('gives byte-identical outputs with --jobs 2 (worker threads) and --jobs 1', async () => {
+  it('gives byte-identical outputs with --jobs 2 (child processes) and --jobs 1', async () => {
     const r = await run(withDouble(['run', 'batch.json', '--out', 'parallel', '--jobs', '2', '--quiet']));
     expect(r.code).toBe(0);
     expect(diffTrees(join(root, 'serial'), join(root, 'parallel'))).toEqual([]);
@@ -197,6 +197,10 @@ describe('tuningfork run killed with SIGKILL', () => {
     const finished = readdirSync(join(killedDir, 'sessions'));
     expect(finished).toContain(killedAfter);
     expect(finished.length).toBeLessThan(4);
+    // The session processes of the killed run stop themselves: none publishes a session later
+    // (each slow session takes 0.5 s; wait for three of them).
+    await new Promise((r) => setTimeout(r, 1500));
+    expect(readdirSync(join(killedDir, 'sessions')).sort()).toEqual([...finished].sort());
     for (const id of finished) expect(diffTrees(join(root, 'slow-ref/sessions', id), join(killedDir, 'sessions', id))).toEqual([]);
     // Anything half-written can only be in the staging folder.
     for (const f of listFiles(killedDir)) expect(f.startsWith('.staging/') || f.startsWith('sessions/')).toBe(true);

@@ -6,7 +6,7 @@ import { rng } from '@tuningfork/core';
  *
  * Keyed by id (not by position), so adding or removing sessions never changes the seed of the
  * others, and their finished outputs stay valid; and a session gets the same seed whether it
- * runs serially, in a worker thread or in any shard of a job array.
+ * runs serially, in a child process or in any shard of a job array.
  */
 export function sessionSeed(batchSeed: number, sessionId: string): number {
   return rng(batchSeed).streamNamed(`session/${sessionId}`).nextUint32();

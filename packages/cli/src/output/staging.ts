@@ -63,11 +63,22 @@ export function removeEmptyStaging(outRoot: string): void {
   }
 }
 
+let publishGuard: (() => void) | null = null;
+
+/**
+ * Install a check that runs right before every publishStaged rename and may throw or exit to stop
+ * it (a session child process uses it to stop once its parent run was killed). null removes it.
+ */
+export function setPublishGuard(guard: (() => void) | null): void {
+  publishGuard = guard;
+}
+
 /**
  * Move a finished staging folder to `final`, replacing a previous `final` folder: the old one is
  * renamed aside first and removed after, so `final` is always either the old or the new folder.
  */
 export async function publishStaged(stage: string, final: string): Promise<void> {
+  publishGuard?.();
   try {
     await rename(stage, final);
   } catch (e) {

@@ -1,7 +1,7 @@
 import type { LogLevel } from '../log/logger.js';
 
 /**
- * Everything needed to analyse one session, as plain data (it is posted to worker threads).
+ * Everything needed to analyse one session, as plain data (it is sent to session processes).
  * Paths are absolute.
  */
 export interface SessionJob {
@@ -50,7 +50,7 @@ export interface SessionResult {
   readonly seconds: number;
 }
 
-/** Events a session job reports while it runs (forwarded from worker threads). */
+/** Events a session job reports while it runs (forwarded from session processes). */
 export type JobEvent =
   | { readonly kind: 'progress'; readonly session: string; readonly step: string; readonly fraction: number }
   | { readonly kind: 'log'; readonly level: LogLevel; readonly session: string; readonly message: string };

@@ -118,6 +118,124 @@ function sessionZ(d: UniformSignal): ZScoreResult {
   return { signal: { values: out, sampleRate: d.sampleRate, t0: d.t0 }, center, scale, method: 'session', nUsed: m, floored: false };
 }
 
+// Sample loops of conditionSite, kept in small module functions over Float64Arrays so each stays
+// optimised on its own: inside conditionSite they ran unoptimised whenever that large function was
+// deoptimised (e.g. by a site object of a new shape), ≈ 5 s per 60-min session.
+
+/** out[i] = x[i]/B[i] − 1, NaN where B[i] ≤ 0; returns how many B[i] ≤ 0. */
+function relativeToBaseline(x: Float64Array, B: Float64Array, out: Float64Array): number {
+  let bad = 0;
+  for (let i = 0; i < x.length; i++) {
+    const b0 = B[i]!;
+    if (b0 > 0) out[i] = x[i]! / b0 - 1;
+    else {
+      out[i] = NaN;
+      bad++;
+    }
+  }
+  return bad;
+}
+
+/** Mean and population sd of the finite values, in one pass (sums shifted by the first finite value). */
+function finiteMeanSd(v: Float64Array): { mean: number; sd: number } {
+  let shift = NaN;
+  let m = 0;
+  let s1 = 0;
+  let s2 = 0;
+  for (let i = 0; i < v.length; i++) {
+    const x = v[i]!;
+    if (x - x === 0) {
+      if (m === 0) shift = x;
+      const d = x - shift;
+      s1 += d;
+      s2 += d * d;
+      m++;
+    }
+  }
+  return { mean: shift + s1 / m, sd: Math.sqrt(Math.max(0, s2 / m - (s1 / m) * (s1 / m))) };
+}
+
+/** dff[i] = (S[i] − B[i])/B[i], NaN where B[i] ≤ 0; returns how many B[i] ≤ 0. */
+function dffAgainstBaseline(S: Float64Array, B: Float64Array, dff: Float64Array): number {
+  let bad = 0;
+  for (let i = 0; i < dff.length; i++) {
+    const b0 = B[i]!;
+    if (b0 > 0) dff[i] = (S[i]! - b0) / b0;
+    else {
+      dff[i] = NaN;
+      bad++;
+    }
+  }
+  return bad;
+}
+
+/** Copy the pairs where both ys[i] and xs[i] are finite to the front of yy, xx; returns their count. */
+function finitePairs(ys: Float64Array, xs: Float64Array, yy: Float64Array, xx: Float64Array): number {
+  let m = 0;
+  for (let i = 0; i < ys.length; i++) {
+    if (Number.isFinite(ys[i]!) && Number.isFinite(xs[i]!)) {
+      yy[m] = ys[i]!;
+      xx[m] = xs[i]!;
+      m++;
+    }
+  }
+  return m;
+}
+
+/** Means of consecutive blocks of q samples of ys and xs into bs and bcv (bs.length blocks). */
+function blockMeans(ys: Float64Array, xs: Float64Array, q: number, bs: Float64Array, bcv: Float64Array): void {
+  for (let k = 0; k < bs.length; k++) {
+    let a1 = 0;
+    let a2 = 0;
+    for (let i = k * q, e = i + q; i < e; i++) {
+      a1 += ys[i]!;
+      a2 += xs[i]!;
+    }
+    bs[k] = a1 / q;
+    bcv[k] = a2 / q;
+  }
+}
+
+/** fitted = a + b·C; dff = R − fitted (channels already relative to their baselines). */
+function dffRemoveFitted(a: number, b: number, C: Float64Array, R: Float64Array, fitted: Float64Array, dff: Float64Array): void {
+  for (let i = 0; i < dff.length; i++) {
+    const f = a + b * C[i]!;
+    fitted[i] = f;
+    dff[i] = R[i]! - f;
+  }
+}
+
+/** fitted = a + b·C; dff = (R − fitted)/B, NaN where B ≤ 0; returns how many B ≤ 0. */
+function dffOverBaseline(a: number, b: number, C: Float64Array, R: Float64Array, B: Float64Array, fitted: Float64Array, dff: Float64Array): number {
+  let bad = 0;
+  for (let i = 0; i < dff.length; i++) {
+    const f = a + b * C[i]!;
+    fitted[i] = f;
+    const b0 = B[i]!;
+    if (b0 > 0) dff[i] = (R[i]! - f) / b0;
+    else {
+      dff[i] = NaN;
+      bad++;
+    }
+  }
+  return bad;
+}
+
+/** fitted = a + b·C; dff = (S − fitted)/fitted, NaN where fitted ≤ 0 or NaN; returns how many fitted ≤ 0. */
+function dffOverFitted(a: number, b: number, C: Float64Array, S: Float64Array, fitted: Float64Array, dff: Float64Array): number {
+  let bad = 0;
+  for (let i = 0; i < dff.length; i++) {
+    const f = a + b * C[i]!;
+    fitted[i] = f;
+    if (f > 0) dff[i] = (S[i]! - f) / f;
+    else {
+      dff[i] = NaN;
+      if (!Number.isNaN(f)) bad++;
+    }
+  }
+  return bad;
+}
+
 /**
  * Condition one photometry site: low-pass → (bleaching removal) → robust control fit → ΔF/F → z-score.
  *
@@ -199,16 +317,8 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
   /** Channel relative to its baseline: x/B − 1 ('divide') or x − B ('subtract'); NaN where B ≤ 0. */
   const relative = (x: Float64Array, est: BleachingEstimate): Float64Array => {
     if (!divide) return est.detrended.values;
-    const B = est.baseline.values;
     const out = new Float64Array(x.length);
-    for (let i = 0; i < x.length; i++) {
-      const b0 = B[i]!;
-      if (b0 > 0) out[i] = x[i]! / b0 - 1;
-      else {
-        out[i] = NaN;
-        nonPositive++;
-      }
-    }
+    nonPositive += relativeToBaseline(x, est.baseline.values, out);
     return out;
   };
   const unreliable = (est: BleachingEstimate): boolean => est.fit !== null && (!est.fit.converged || (est.fit.tauAtBound && est.fit.tau1 <= est.fit.bounds.tauMinSec * (1 + 1e-6)));
@@ -220,23 +330,7 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
 
   // Degenerate control?
   // Mean and sd of the control in one pass (sums shifted by the first finite value).
-  const cv = fCtl.values;
-  let shift = NaN;
-  let cN = 0;
-  let cS = 0;
-  let cSS = 0;
-  for (let i = 0; i < n; i++) {
-    const v = cv[i]!;
-    if (v - v === 0) {
-      if (cN === 0) shift = v;
-      const d = v - shift;
-      cS += d;
-      cSS += d * d;
-      cN++;
-    }
-  }
-  const cMean = shift + cS / cN;
-  const cSd = Math.sqrt(Math.max(0, cSS / cN - (cS / cN) * (cS / cN)));
+  const { mean: cMean, sd: cSd } = finiteMeanSd(fCtl.values);
   const degenerate = !(cSd > 1e-6 * Math.abs(cMean));
   const clipped = ctlClip.clipped;
   if (degenerate) flags.push('control-degenerate');
@@ -249,15 +343,7 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
     // Fall back to the signal's bleaching baseline; never divide by a useless control.
     warnings.push({ code: 'NO_MOTION_CORRECTION', message: `${fn}${where}: the control is ${degenerate ? `degenerate (sd ${cSd} vs mean ${cMean})` : 'clipped'}; ΔF/F uses the signal's bleaching baseline only.` });
     if (!bleachS) bleachS = estimateBleaching(fSig, bleachOpts.method === 'highpass' ? bleachOpts : { method: 'double-exponential' });
-    const B = bleachS.baseline.values;
-    for (let i = 0; i < n; i++) {
-      const b0 = B[i]!;
-      if (b0 > 0) dff[i] = (fSig.values[i]! - b0) / b0;
-      else {
-        dff[i] = NaN;
-        nonPositive++;
-      }
-    }
+    nonPositive += dffAgainstBaseline(fSig.values, bleachS.baseline.values, dff);
     bleaching = { signal: bleachS, control: null };
   } else {
     let bleachC: BleachingEstimate | null = null;
@@ -273,16 +359,9 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
     let ys = fitS.subarray(i0, i1);
     let xs = fitC.subarray(i0, i1);
     if (nanMode === 'split' || nonPositive > 0) {
-      let m = 0;
       const yy = new Float64Array(i1 - i0);
       const xx = new Float64Array(i1 - i0);
-      for (let i = 0; i < ys.length; i++) {
-        if (Number.isFinite(ys[i]!) && Number.isFinite(xs[i]!)) {
-          yy[m] = ys[i]!;
-          xx[m] = xs[i]!;
-          m++;
-        }
-      }
+      const m = finitePairs(ys, xs, yy, xx);
       ys = yy.subarray(0, m);
       xs = xx.subarray(0, m);
     }
@@ -295,16 +374,7 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
       if (design && nb > design.padLen) {
         const bs = new Float64Array(nb);
         const bcv = new Float64Array(nb);
-        for (let k = 0; k < nb; k++) {
-          let a1 = 0;
-          let a2 = 0;
-          for (let i = k * q, e = i + q; i < e; i++) {
-            a1 += ys[i]!;
-            a2 += xs[i]!;
-          }
-          bs[k] = a1 / q;
-          bcv[k] = a2 / q;
-        }
+        blockMeans(ys, xs, q, bs, bcv);
         const plan = zeroPhasePlan(design);
         ys = plan.apply(bs, bs);
         xs = plan.apply(bcv, bcv);
@@ -321,36 +391,9 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
     fitted = new Float64Array(n);
     const a = fit.intercept;
     const b = fit.slope;
-    if (bleachS && divide) {
-      for (let i = 0; i < n; i++) {
-        const f = a + b * fitC[i]!;
-        fitted[i] = f;
-        dff[i] = fitS[i]! - f;
-      }
-    } else if (bleachS) {
-      const B = bleachS.baseline.values;
-      for (let i = 0; i < n; i++) {
-        const f = a + b * fitC[i]!;
-        fitted[i] = f;
-        const b0 = B[i]!;
-        if (b0 > 0) dff[i] = (fitS[i]! - f) / b0;
-        else {
-          dff[i] = NaN;
-          nonPositive++;
-        }
-      }
-    } else {
-      const S = fSig.values;
-      for (let i = 0; i < n; i++) {
-        const f = a + b * fitC[i]!;
-        fitted[i] = f;
-        if (f > 0) dff[i] = (S[i]! - f) / f;
-        else {
-          dff[i] = NaN;
-          if (!Number.isNaN(f)) nonPositive++;
-        }
-      }
-    }
+    if (bleachS && divide) dffRemoveFitted(a, b, fitC, fitS, fitted, dff);
+    else if (bleachS) nonPositive += dffOverBaseline(a, b, fitC, fitS, bleachS.baseline.values, fitted, dff);
+    else nonPositive += dffOverFitted(a, b, fitC, fSig.values, fitted, dff);
   }
   if (nonPositive > 0) {
     flags.push('reference-nonpositive');
