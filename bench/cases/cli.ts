@@ -20,23 +20,41 @@ const BIN = join(REPO, 'packages', 'cli', 'dist', 'bin.js');
 const N_SESSIONS = 8;
 const DURATION_SEC = 3600;
 
-/** Wall time and peak RSS (VmHWM of the process, worker threads included) of one command. */
+/** The process and its descendants (Linux /proc; just the process elsewhere). */
+function processTree(pid: number): number[] {
+  const out = [pid];
+  for (let k = 0; k < out.length; k++) {
+    try {
+      const kids = readFileSync(`/proc/${out[k]}/task/${out[k]}/children`, 'utf8').trim();
+      if (kids !== '') out.push(...kids.split(/\s+/).map(Number));
+    } catch { /* exited, or no /proc */ }
+  }
+  return out;
+}
+
+/**
+ * Wall time and peak memory of one command: the sum over the process and its session child
+ * processes of each one's peak RSS (VmHWM; threads included).
+ */
 function timed(args: readonly string[], cwd: string): Promise<{ sec: number; peakMB: number; code: number | null; stderr: string }> {
   return new Promise((resolveRun) => {
     const t0 = process.hrtime.bigint();
     const child = spawn(process.execPath, [BIN, ...args], { cwd, stdio: ['ignore', 'ignore', 'pipe'] });
     let stderr = '';
-    let peakKB = 0;
+    const peakKB = new Map<number, number>();
     child.stderr.setEncoding('utf8').on('data', (d: string) => { stderr += d; });
     const poll = setInterval(() => {
-      try {
-        const m = /VmHWM:\s+(\d+)/.exec(readFileSync(`/proc/${child.pid}/status`, 'utf8'));
-        if (m !== null) peakKB = Math.max(peakKB, Number(m[1]));
-      } catch { /* exited */ }
+      for (const pid of processTree(child.pid!)) {
+        try {
+          const m = /VmHWM:\s+(\d+)/.exec(readFileSync(`/proc/${pid}/status`, 'utf8'));
+          if (m !== null) peakKB.set(pid, Math.max(peakKB.get(pid) ?? 0, Number(m[1])));
+        } catch { /* exited */ }
+      }
     }, 100);
     child.on('close', (code) => {
       clearInterval(poll);
-      resolveRun({ sec: Number(process.hrtime.bigint() - t0) / 1e9, peakMB: peakKB / 1024, code, stderr });
+      const total = [...peakKB.values()].reduce((a, b) => a + b, 0);
+      resolveRun({ sec: Number(process.hrtime.bigint() - t0) / 1e9, peakMB: total / 1024, code, stderr });
     });
   });
 }
