@@ -1,5 +1,5 @@
 // `tuningfork demo` and `tuningfork check` as a new user runs them.
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { expectAllClose } from '@tuningfork/test-utils';
@@ -76,6 +76,20 @@ describe('tuningfork demo with the session pipeline of the tuningfork package', 
     expect(prov.pipeline).toBe('tuningfork');
     expect(prov.analysis.operation).toBe('analyzeSession');
     expect(prov.analysis.seed).toBe(3);
+  }, 120_000);
+
+  it('gives byte-identical sessions of the real pipeline with --jobs 2 (child processes) and --jobs 1', async () => {
+    for (const seed of [6, 7]) {
+      const d = await runCli(['demo', '--no-analysis', '--quiet', '--duration', '90', '--sites', '1', '--units', '2', '--seed', String(seed), '--out', `real-in/s${seed}`], root);
+      expect(d.code).toBe(0);
+    }
+    writeFileSync(join(root, 'real-batch.json'), JSON.stringify({ seed: 1, sessions: [{ manifest: 'real-in/s6/input/session.json' }, { manifest: 'real-in/s7/input/session.json' }] }));
+    const serial = await runCli(['run', 'real-batch.json', '--out', 'real-j1', '--jobs', '1', '--no-merge', '--quiet'], root);
+    expect(serial.code).toBe(0);
+    const parallel = await runCli(['run', 'real-batch.json', '--out', 'real-j2', '--jobs', '2', '--no-merge', '--quiet'], root);
+    expect(parallel.code).toBe(0);
+    expect(listFiles(join(root, 'real-j2/sessions/sim-seed7'))).toContain('cells.arrow');
+    expect(diffTrees(join(root, 'real-j1/sessions'), join(root, 'real-j2/sessions'))).toEqual([]);
   }, 120_000);
 });
 
