@@ -22,6 +22,8 @@ beforeAll(async () => {
   await makeBatch(root, 4, { delayMs: 0 });
   // The same sessions with a slower analysis, for the kill test.
   writeBatch(root, 'slow.json', [3, 1, 4, 2], { delayMs: 500 });
+  // Two sessions whose analysis blocks its process for 1.5 s after its last progress event.
+  writeBatch(root, 'busy.json', [1, 2], { blockMs: 1500 });
 }, 120_000);
 
 afterAll(() => removeTree(root));
@@ -210,5 +212,30 @@ describe('tuningfork run killed with SIGKILL', () => {
     const skipped = events(rerun.stdout).filter((e) => e.message === 'up to date (skipped)').map((e) => e.session);
     expect(skipped.sort()).toEqual([...finished].sort());
     expect(diffTrees(join(root, 'slow-ref'), killedDir)).toEqual([]);
+  }, 60_000);
+
+  it('stops the session processes of a killed run before they publish, and the rerun leaves no staging behind', async () => {
+    const child = spawn(process.execPath, [BIN, ...withDouble(['run', 'busy.json', '--out', 'busy-killed', '--jobs', '2', '--log-format', 'json'])], { cwd: root, env: cleanEnv(), stdio: ['ignore', 'pipe', 'pipe'] });
+    // Kill the run once both sessions are inside their blocking analysis.
+    await new Promise<void>((resolveKill) => {
+      let buf = '';
+      child.stdout.setEncoding('utf8').on('data', (d: string) => {
+        buf += d;
+        const busy = new Set(events(buf.slice(0, buf.lastIndexOf('\n') + 1)).filter((e) => e.step === 'double' && e.fraction === 1).map((e) => e.session));
+        if (busy.size === 2 && child.exitCode === null && !child.killed) {
+          child.kill('SIGKILL');
+          resolveKill();
+        }
+      });
+    });
+    await new Promise((r) => child.on('close', r));
+    // The orphaned session processes finish blocking within 1.5 s; give them 3 s to (not) publish.
+    await new Promise((r) => setTimeout(r, 3000));
+    const dir = join(root, 'busy-killed');
+    expect(existsSync(join(dir, 'sessions')) ? readdirSync(join(dir, 'sessions')) : []).toEqual([]);
+    const rerun = await run(withDouble(['run', 'busy.json', '--out', 'busy-killed', '--jobs', '2', '--quiet']));
+    expect(rerun.code).toBe(0);
+    expect(readdirSync(join(dir, 'sessions')).sort()).toEqual(['sim-seed1', 'sim-seed2']);
+    expect(existsSync(join(dir, '.staging'))).toBe(false);
   }, 60_000);
 });

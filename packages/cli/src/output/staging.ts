@@ -9,12 +9,23 @@ export const STAGING_DIR = '.staging';
 
 let sequence = 0;
 
+/** Environment variable through which a run tells its session child processes its own pid. */
+export const OWNER_PID_ENV = 'TUNINGFORK_OWNER_PID';
+
+/** Pid of the run that owns this process's staging folders: the parent run for a session child, else this process. */
+function ownerPid(): number {
+  if (process.send === undefined) return process.pid; // not a child with an IPC channel: its own owner
+  const v = Number(process.env[OWNER_PID_ENV]);
+  return Number.isSafeInteger(v) && v > 0 ? v : process.pid;
+}
+
 /**
- * A fresh staging path for one session: `<out>/.staging/<id>~<host>~<pid>~<thread>~<n>`. The
- * owner's host and process id in the name let a later run remove what a killed run left.
+ * A fresh staging path for one session: `<out>/.staging/<id>~<host>~<owner pid>~<pid>-<thread>~<n>`.
+ * The owning run's host and process id in the name let a later run remove what a killed run left,
+ * including what its session child processes staged.
  */
 export function stagingPath(outRoot: string, id: string): string {
-  return join(outRoot, STAGING_DIR, `${id}~${hostname()}~${process.pid}~${threadId}~${(sequence++).toString(36)}`);
+  return join(outRoot, STAGING_DIR, `${id}~${hostname()}~${ownerPid()}~${process.pid}-${threadId}~${(sequence++).toString(36)}`);
 }
 
 function alive(pid: number): boolean {
@@ -63,13 +74,14 @@ export function removeEmptyStaging(outRoot: string): void {
   }
 }
 
-let publishGuard: (() => void) | null = null;
+let publishGuard: ((stage: string) => void) | null = null;
 
 /**
- * Install a check that runs right before every publishStaged rename and may throw or exit to stop
- * it (a session child process uses it to stop once its parent run was killed). null removes it.
+ * Install a check that runs right before every publishStaged rename, with the staging folder, and
+ * may throw or exit to stop it (a session child process uses it to remove the folder and stop once
+ * its parent run was killed). null removes it.
  */
-export function setPublishGuard(guard: (() => void) | null): void {
+export function setPublishGuard(guard: ((stage: string) => void) | null): void {
   publishGuard = guard;
 }
 
@@ -78,7 +90,7 @@ export function setPublishGuard(guard: (() => void) | null): void {
  * renamed aside first and removed after, so `final` is always either the old or the new folder.
  */
 export async function publishStaged(stage: string, final: string): Promise<void> {
-  publishGuard?.();
+  publishGuard?.(stage);
   try {
     await rename(stage, final);
   } catch (e) {

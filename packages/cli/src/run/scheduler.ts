@@ -3,6 +3,7 @@ import type { ChildProcess } from 'node:child_process';
 import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { errorLine } from '../errors.js';
+import { OWNER_PID_ENV } from '../output/staging.js';
 import { TuningforkError } from '@tuningfork/core';
 import type { JobEvent, SessionJob, SessionResult } from './job-types.js';
 
@@ -71,7 +72,7 @@ export async function runJobs(list: readonly SessionJob[], options: RunJobsOptio
     const startChild = () => {
       const child = fork(entry, [], {
         execArgv: [...process.execArgv, ...sessionProcessFlags(share)],
-        env: { ...process.env, TUNINGFORK_THREADS: String(share) },
+        env: { ...process.env, TUNINGFORK_THREADS: String(share), [OWNER_PID_ENV]: String(process.pid) },
         serialization: 'advanced',
         stdio: ['ignore', 'inherit', 'inherit', 'ipc'],
       });
