@@ -1,4 +1,4 @@
-import { readdirSync, rmSync, rmdirSync } from 'node:fs';
+import { readFileSync, readdirSync, rmSync, rmdirSync } from 'node:fs';
 import { rename, rm } from 'node:fs/promises';
 import { hostname } from 'node:os';
 import { join } from 'node:path';
@@ -28,12 +28,19 @@ export function stagingPath(outRoot: string, id: string): string {
   return join(outRoot, STAGING_DIR, `${id}~${hostname()}~${ownerPid()}~${process.pid}-${threadId}~${(sequence++).toString(36)}`);
 }
 
+/** Whether process pid runs: it exists (signal 0) and, where /proc tells, is not a zombie (exited, not yet reaped). */
 function alive(pid: number): boolean {
   try {
     process.kill(pid, 0);
-    return true;
   } catch (e) {
     return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
+  try {
+    // /proc/<pid>/stat: "pid (comm) state …"; comm may hold spaces or parentheses, so read after the last ')'.
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    return stat.slice(stat.lastIndexOf(')') + 2, stat.lastIndexOf(')') + 3) !== 'Z';
+  } catch {
+    return true; // no /proc (not Linux): trust the signal
   }
 }
 
