@@ -9,6 +9,7 @@
  * | 3 | `incomplete` | `merge` found sessions of the batch without finished outputs (a shard not run yet) |
  * | 4 | `internal` | an unexpected failure inside tuningfork (a bug: please report it) |
  * | 130 | `interrupted` | stopped by Ctrl-C / SIGINT or SIGTERM; finished sessions are kept, rerun to resume |
+ * | 141 | `outputClosed` | the reader of stdout or stderr went away (e.g. `| head`); finished sessions are kept |
  */
 export const EXIT_CODES = Object.freeze({
   ok: 0,
@@ -17,6 +18,7 @@ export const EXIT_CODES = Object.freeze({
   incomplete: 3,
   internal: 4,
   interrupted: 130,
+  outputClosed: 141,
 } as const);
 
 /** Name of an exit code. */
@@ -31,4 +33,5 @@ export const EXIT_CODE_HELP = [
   '  3    merge found sessions without finished outputs (run the missing shards first)',
   '  4    internal error (a bug in tuningfork: please report it)',
   '  130  interrupted (SIGINT/SIGTERM); finished sessions are kept, rerun to resume',
+  '  141  output closed: the reader of stdout/stderr went away (e.g. | head); finished sessions are kept',
 ].join('\n');

@@ -1,12 +1,13 @@
 // The help texts are accurate: each subcommand's --help lists exactly the options it accepts,
 // the README documents the same options and exit codes, and --help exits 0 quickly-enough to be
 // usable (speed itself is measured in bench/cases/cli.ts, not here).
+import { spawn } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { buildProgram, EXIT_CODES } from '../src/index.js';
 import type { CliRequest } from '../src/index.js';
-import { REPO, ensureBuilt, runCli } from './helpers/cli.js';
+import { BIN, REPO, ensureBuilt, runCli } from './helpers/cli.js';
 
 const COMMANDS = ['demo', 'check', 'run', 'merge'] as const;
 
@@ -46,6 +47,16 @@ beforeAll(async () => {
 }, 60_000);
 
 describe('tuningfork --help', () => {
+  it('stops quietly with 141 (128 + SIGPIPE) when its reader closes the pipe early (as `| head` does)', async () => {
+    const child = spawn(process.execPath, [BIN, 'run', '--help'], { stdio: ['ignore', 'pipe', 'pipe'] });
+    child.stdout.destroy(); // the reader is gone before the help is written: the write meets EPIPE
+    let stderr = '';
+    child.stderr.setEncoding('utf8').on('data', (d: string) => { stderr += d; });
+    const code = await new Promise<number | null>((r) => child.on('close', r));
+    expect(stderr).toBe('');
+    expect(code).toBe(141);
+  });
+
   it('names every subcommand, shows examples and the exit-code table', () => {
     for (const c of COMMANDS) expect(helps['']).toMatch(new RegExp(`^  ${c} `, 'm'));
     expect(helps['']).toContain('Examples:');
