@@ -10,7 +10,7 @@ import { makeEventTable, rng } from '@tuningfork/core';
 import type { PhotometrySite, UniformSignal } from '@tuningfork/core';
 import { loadSession, parseCsv, readEvents, readTrace, validateManifest } from '@tuningfork/io';
 import { binSpikes, conditionSite, fitControl, sosfiltfilt, butterworth } from '@tuningfork/signal';
-import { fitClockMap, mapDeviceTimes, movementOnsets, periEventMatrix, lickBouts } from '@tuningfork/align';
+import { decodeBarcodes, fitClockMap, mapDeviceTimes, movementOnsets, periEventMatrix, lickBouts } from '@tuningfork/align';
 import { adjustPValues, bootstrapTimecourse, clusterPermutationTest } from '@tuningfork/stats';
 import { choiceLogLikelihood, fitChoiceModel } from '@tuningfork/learning';
 import { designMatrix, fitPoissonGLM, fitRidgeCV, raisedCosineBasis } from '@tuningfork/encode';
@@ -86,6 +86,10 @@ export const CATALOGUE: readonly BadInput[] = [
   { id: 'sync-too-few-pulses', area: 'alignment', what: 'too few sync pulses to fit a clock map', run: () => fitClockMap(Float64Array.of(1, 2), Float64Array.of(1.1, 2.1)), expect: { code: 'TF_SYNC_FAILED' } },
   { id: 'sync-ambiguous', area: 'alignment', what: 'perfectly periodic pulses (every match is ambiguous)', run: () => fitClockMap(Float64Array.from({ length: 50 }, (_, i) => i), Float64Array.from({ length: 50 }, (_, i) => 3 + i)), expect: { code: 'TF_SYNC_FAILED' } },
   { id: 'sync-outside-range', area: 'alignment', what: 'mapping a time outside the synchronised range', run: () => { const r = rng(3); let t = 0; const a = Float64Array.from({ length: 60 }, () => (t += 0.5 + r.uniform())); const m = fitClockMap(a.map((x) => 2 + x * 1.00002), a); return mapDeviceTimes(m, Float64Array.of(1e6)); }, expect: { code: 'TF_SYNC_FAILED' } },
+  { id: 'barcode-wrong-bit-duration', area: 'alignment', what: 'barcodes decoded with the wrong cell duration (rejected, reported, no value)', run: () => decodeBarcodes({ starts: [0, 0.04, 0.07], ends: [0.02, 0.05, 0.09] }, { bitSec: 0.012, nBits: 8 }), expect: { warning: 'barcodes-rejected', check: (r) => { if (r.values.length !== 0) throw new Error(`decoded ${r.values.length} values`); } } },
+  { id: 'barcode-format-missing', area: 'alignment', what: 'barcode decoding without the number of bits', run: () => decodeBarcodes({ starts: [0], ends: [0.02] }, { bitSec: 0.01 } as never), expect: { code: 'TF_BAD_OPTION' } },
+  { id: 'sync-codes-one-side', area: 'alignment', what: 'barcode codes for the reference train only', run: () => fitClockMap(Float64Array.from({ length: 30 }, (_, i) => i), Float64Array.from({ length: 30 }, (_, i) => 3 + i), { referenceCodes: Float64Array.from({ length: 30 }, (_, i) => i) }), expect: { code: 'TF_SHAPE_MISMATCH' } },
+  { id: 'sync-codes-wrapped', area: 'alignment', what: 'periodic barcodes whose 4-bit counter wraps (placeable at several offsets)', run: () => fitClockMap(Float64Array.from({ length: 100 }, (_, i) => i), Float64Array.from({ length: 100 }, (_, i) => 3 + i), { referenceCodes: Float64Array.from({ length: 100 }, (_, i) => i % 16), deviceCodes: Float64Array.from({ length: 100 }, (_, i) => i % 16) }), expect: { code: 'TF_SYNC_FAILED' } },
   { id: 'movement-flat', area: 'alignment', what: 'an accelerometer that never moves (zero robust sd)', run: () => movementOnsets(sig(new Float64Array(1000).fill(1)), { baseline: 'median' }), expect: { code: 'TF_DEGENERATE_SIGNAL' } },
   { id: 'licks-unsorted', area: 'alignment', what: 'lick times out of order (sorted, reported)', run: () => lickBouts(Float64Array.of(1, 0.5, 2)), expect: { warning: 'licks-sorted' } },
   { id: 'licks-nan', area: 'alignment', what: 'a NaN lick time', run: () => lickBouts(Float64Array.of(1, NaN, 2)), expect: { code: 'TF_BAD_EVENTS' } },

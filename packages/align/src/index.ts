@@ -3,6 +3,8 @@ export { digitalEdges } from './edges/digital-edges.js';
 export type { DigitalEdgesOptions, EdgeResult } from './edges/digital-edges.js';
 export { analogEdges } from './edges/analog-edges.js';
 export type { AnalogEdgesOptions } from './edges/analog-edges.js';
+export { decodeBarcodes } from './edges/decode-barcodes.js';
+export type { BarcodePulses, BarcodeRejection, DecodeBarcodesOptions, DecodeBarcodesResult } from './edges/decode-barcodes.js';
 
 // Clock synchronisation
 export { fitClockMap } from './clock/fit-clock-map.js';

@@ -3,7 +3,8 @@ import {
 } from '@tuningfork/core';
 import type { ResultWarning } from '@tuningfork/core';
 import { findAnchors, fitPiece, groupAnchors, ipiTolerance, okUnder } from '../internal/clock-match.js';
-import type { PiecePairs } from '../internal/clock-match.js';
+import type { Anchors, PiecePairs } from '../internal/clock-match.js';
+import { findCodeAnchors } from '../internal/code-anchors.js';
 import { fitLine } from '../internal/ols.js';
 import type { Line } from '../internal/ols.js';
 import { checkNumberArray } from '../internal/validate.js';
@@ -70,6 +71,14 @@ export interface FitClockMapOptions {
   minPairs?: number;
   /** Device-clock jumps (restarts): fit each stretch separately, or throw. @defaultValue 'split' */
   jumps?: 'split' | 'error';
+  /**
+   * The code each reference pulse carries (decodeBarcodes(...).values), one per pulse, NaN where
+   * unknown; with `deviceCodes`, seeds come from equal codes instead of IPI windows, so periodic
+   * barcodes match too. @defaultValue null (match by IPI pattern)
+   */
+  referenceCodes?: ArrayLike<number> | null;
+  /** The code each device pulse carries; given together with `referenceCodes`. @defaultValue null */
+  deviceCodes?: ArrayLike<number> | null;
 }
 
 const DEFAULTS = Object.freeze({
@@ -81,6 +90,8 @@ const DEFAULTS = Object.freeze({
   resolutionSec: 0.001,
   minPairs: 10,
   jumps: 'split' as 'split' | 'error',
+  referenceCodes: null as ArrayLike<number> | null,
+  deviceCodes: null as ArrayLike<number> | null,
 });
 
 /** Drift beyond this many ppm probably means a wrong nominal sample rate (flag only). */
@@ -119,6 +130,15 @@ function rmsMax(res: Float64Array): [number, number] {
  * (`sync-large-residual`) (common practice, no source). Use the same edge polarity on both sides:
  * a constant latency is indistinguishable from offset.
  *
+ * **Barcodes.** With `referenceCodes` and `deviceCodes` (the values decodeBarcodes read from each
+ * side's sync line, pulses = the barcodes' start times), step (2) takes as seeds the pulses whose
+ * code occurs once in the other train, places repeated codes of a wrapped counter by the
+ * nearest such unique code (internal/code-anchors.ts), and steps (3)–(5) run unchanged with
+ * windows of one pulse. A clock stretch whose codes all repeat cannot be placed (every shift by
+ * a wrap period fits periodic barcodes equally well): send enough bits not to wrap. The
+ * codes only seed the match; pairing under the fitted line is by time, so a misread code costs
+ * nothing beyond a dropped seed.
+ *
  * Map device times with mapDeviceTimes, which refuses times outside the synchronised range unless
  * asked to extrapolate.
  *
@@ -129,8 +149,10 @@ function rmsMax(res: Float64Array): [number, number] {
  * @returns ClockMap `{ pieces, pairs, unmatchedReference, unmatchedDevice, rmsResidualSec, maxResidualSec, warnings }`.
  * @throws {TuningforkError} TF_SYNC_FAILED: too few pulses on either side (fewer than minPairs or
  *   seedIntervals + 1), no IPI pattern in common, only ambiguous matches (e.g. periodic pulses),
- *   pieces overlapping on the reference clock, or a jump with `jumps: 'error'`; TF_BAD_EVENTS:
- *   non-finite, unsorted or duplicate reference pulses, or duplicate consecutive device pulses;
+ *   pieces overlapping on the reference clock, or a jump with `jumps: 'error'`, or no code in
+ *   common; TF_BAD_EVENTS: non-finite, unsorted or duplicate reference pulses, or duplicate
+ *   consecutive device pulses; TF_SHAPE_MISMATCH: codes not one per pulse, or only one side's
+ *   codes given; TF_BAD_VALUE: a code that is not a non-negative integer (or NaN);
  *   TF_BAD_OPTION / TF_UNKNOWN_OPTION.
  *
  * @example
@@ -172,20 +194,31 @@ export function fitClockMap(referencePulses: ArrayLike<number>, devicePulses: Ar
       resets++;
     }
   }
-  const need = Math.max(minPairs, K + 1);
+  const codes = checkCodes(fn, o.referenceCodes, o.deviceCodes, A.length, B.length);
+  const W = codes ? 0 : K; // pulses per seed window minus one
+  const need = Math.max(minPairs, W + 1);
   if (A.length < need || B.length < need) {
     throw new TuningforkError(
       'TF_SYNC_FAILED',
-      `${fn}: too few sync pulses to fit a clock map: ${A.length} reference and ${B.length} device pulses; at least ${need} on each side are needed (minPairs ${minPairs}, seedIntervals ${K}).`,
+      `${fn}: too few sync pulses to fit a clock map: ${A.length} reference and ${B.length} device pulses; at least ${need} on each side are needed (minPairs ${minPairs}${codes ? '' : `, seedIntervals ${K}`}).`,
       { fn, reference: A.length, device: B.length, needed: need },
     );
   }
-  const anc = findAnchors(A, B, K, tolSec, tolPpm);
+  const resetsBefore = new Int32Array(B.length);
+  for (let j = 1; j < B.length; j++) resetsBefore[j] = resetsBefore[j - 1]! + (B[j]! < B[j - 1]! ? 1 : 0);
+  const anc: Anchors = codes ? findCodeAnchors(A, B, codes.reference, codes.device, resetsBefore) : findAnchors(A, B, K, tolSec, tolPpm);
+  if (anc.ai.length === 0 && codes) {
+    throw new TuningforkError(
+      'TF_SYNC_FAILED',
+      `${fn}: no device code can be matched to one reference pulse (${anc.nAmbiguous} ambiguous): the two sides share no barcode value, or every value repeats (a counter that wrapped) and no unique value places the repeats in time. Check that both sides were decoded with the same format, and send enough bits not to wrap within a session.`,
+      { fn, reason: anc.nAmbiguous > 0 ? 'ambiguous' : 'no-match', ambiguous: anc.nAmbiguous },
+    );
+  }
   if (anc.ai.length === 0) {
     if (anc.nAmbiguous > 0) {
       throw new TuningforkError(
         'TF_SYNC_FAILED',
-        `${fn}: every matching window of ${K} inter-pulse intervals fits several places in the reference train (${anc.nAmbiguous} ambiguous windows): the pulses are too regular (periodic?) to be matched. Send random intervals or barcodes, or raise seedIntervals.`,
+        `${fn}: every matching window of ${K} inter-pulse intervals fits several places in the reference train (${anc.nAmbiguous} ambiguous windows): the pulses are too regular (periodic?) to be matched. Send random intervals or barcodes (decodeBarcodes, then referenceCodes / deviceCodes), or raise seedIntervals.`,
         { fn, ambiguous: anc.nAmbiguous, reason: 'ambiguous' },
       );
     }
@@ -195,14 +228,13 @@ export function fitClockMap(referencePulses: ArrayLike<number>, devicePulses: Ar
       { fn, reason: 'no-match' },
     );
   }
-  const resetsBefore = new Int32Array(B.length);
-  for (let j = 1; j < B.length; j++) resetsBefore[j] = resetsBefore[j - 1]! + (B[j]! < B[j - 1]! ? 1 : 0);
 
-  // Smallest IPI inside matched windows sets the pairing radius.
+  // Smallest IPI inside matched windows (with codes: of the whole device train) sets the pairing radius.
   let minIpi = Infinity;
   for (let k = 0; k < anc.bj.length; k++) {
-    for (let m = 0; m < K; m++) minIpi = Math.min(minIpi, B[anc.bj[k]! + m + 1]! - B[anc.bj[k]! + m]!);
+    for (let m = 0; m < W; m++) minIpi = Math.min(minIpi, B[anc.bj[k]! + m + 1]! - B[anc.bj[k]! + m]!);
   }
+  if (codes) for (let j = 1; j < B.length; j++) if (B[j]! > B[j - 1]!) minIpi = Math.min(minIpi, B[j]! - B[j - 1]!);
   const radius = radiusFrac * minIpi;
   const floorSec = 2 * resolution;
   const warnings: ResultWarning[] = [];
@@ -211,19 +243,20 @@ export function fitClockMap(referencePulses: ArrayLike<number>, devicePulses: Ar
   const active = new Uint8Array(anc.ai.length).fill(1);
   let groups: number[][] = [];
   for (let round = 0; round < 20; round++) {
-    groups = groupAnchors(A, B, anc, active, K, ipiTolerance(1, tolSec, tolPpm), resetsBefore);
+    groups = groupAnchors(A, B, anc, active, W, ipiTolerance(1, tolSec, tolPpm), resetsBefore);
     let dropped = false;
     for (const g of groups) {
       const first = anc.bj[g[0]!]!;
-      const last = anc.bj[g[g.length - 1]!]! + K;
+      const last = anc.bj[g[g.length - 1]!]! + W;
       let distinct = 0;
       let covered = -1;
       for (const k of g) {
         const j = anc.bj[k]!;
-        distinct += Math.min(K + 1, j + K - covered);
-        covered = j + K;
+        distinct += Math.min(W + 1, j + W - covered);
+        covered = j + W;
       }
-      if (distinct < minPairs && groups.length > 1) {
+      // One IPI window is strong evidence and may seed a lone piece; one code is not.
+      if (distinct < minPairs && (groups.length > 1 || codes)) {
         for (const k of g) active[k] = 0;
         dropped = true;
         warnings.push({ code: 'sync-piece-dropped', message: `${fn}: a stretch of ${distinct} seed-matched pulses (device pulses ${first}–${last}) disagrees with its neighbours and is too short to be a clock piece (minPairs ${minPairs}); ignored.`, details: { firstDevicePulse: first, lastDevicePulse: last } });
@@ -235,18 +268,18 @@ export function fitClockMap(referencePulses: ArrayLike<number>, devicePulses: Ar
   // Interior fits (between each piece's first and last seed).
   const interior: { lo: number; hi: number; fit: PiecePairs }[] = groups.map((g) => {
     const lo = anc.bj[g[0]!]!;
-    const hi = anc.bj[g[g.length - 1]!]! + K;
+    const hi = anc.bj[g[g.length - 1]!]! + W;
     const xs: number[] = [];
     const ys: number[] = [];
     let covered = -1;
     for (const k of g) {
-      for (let m = 0; m <= K; m++) {
+      for (let m = 0; m <= W; m++) {
         const j = anc.bj[k]! + m;
         if (j <= covered) continue;
         xs.push(B[j]!);
         ys.push(A[anc.ai[k]! + m]!);
       }
-      covered = anc.bj[k]! + K;
+      covered = anc.bj[k]! + W;
     }
     const start: Line = fitLine(xs, ys);
     return { lo, hi, fit: fitPiece(A, B, lo, hi, start, radius, outlierSd, floorSec) };
@@ -349,4 +382,27 @@ export function fitClockMap(referencePulses: ArrayLike<number>, devicePulses: Ar
     maxResidualSec: mx,
     warnings,
   };
+}
+
+/** Validate the optional per-pulse codes: both or neither, one per pulse, non-negative integers or NaN. */
+function checkCodes(fn: string, ref: ArrayLike<number> | null, dev: ArrayLike<number> | null, nA: number, nB: number): { reference: Float64Array; device: Float64Array } | null {
+  if (ref === null && dev === null) return null;
+  if (ref === null || dev === null) {
+    throw new TuningforkError('TF_SHAPE_MISMATCH', `${fn}: ${ref === null ? 'deviceCodes' : 'referenceCodes'} was given without ${ref === null ? 'referenceCodes' : 'deviceCodes'}; codes match two trains, so pass both or neither.`, { fn });
+  }
+  const out: Float64Array[] = [];
+  for (const [name, c, n] of [['referenceCodes', ref, nA], ['deviceCodes', dev, nB]] as const) {
+    const x = toFloat64(checkNumberArray(fn, name, c));
+    if (x.length !== n) {
+      throw new TuningforkError('TF_SHAPE_MISMATCH', `${fn}: ${name} has ${x.length} entries for ${n} pulses; pass one code per pulse (NaN where unknown).`, { fn, parameter: name, codes: x.length, pulses: n });
+    }
+    for (let i = 0; i < n; i++) {
+      const v = x[i]!;
+      if (v === v && !(Number.isInteger(v) && v >= 0)) {
+        throw new TuningforkError('TF_BAD_VALUE', `${fn}: ${name}[${i}] is ${v}; a code must be a non-negative integer (NaN where unknown).`, { fn, parameter: name, index: i });
+      }
+    }
+    out.push(x);
+  }
+  return { reference: out[0]!, device: out[1]! };
 }

@@ -21,6 +21,8 @@ export interface ScenarioOptions {
   jump: 'none' | 'reset' | 'forward';
   jumpAtSec: number;
   stepSec: number;
+  /** Send pulses at this fixed period instead of U(0.5, 1.5) s intervals (barcode trains). */
+  periodSec?: number;
 }
 
 export interface Scenario {
@@ -54,7 +56,8 @@ export function makeScenario(o: ScenarioOptions): Scenario {
   const devId: number[] = [];
   let shared = 0;
   let id = 0;
-  for (let t = 0.5 + times.uniform(); t < o.durationSec; t += 0.5 + times.uniform(), id++) {
+  const next = () => (o.periodSec === undefined ? 0.5 + times.uniform() : o.periodSec);
+  for (let t = next(); t < o.durationSec; t += next(), id++) {
     const inRef = t >= o.referenceLateSec && !drops.bernoulli(o.dropFraction);
     const inDev = t >= o.deviceLateSec && !drops.bernoulli(o.dropFraction);
     const jr = o.jitterSec * jit.normal();
