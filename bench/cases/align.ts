@@ -25,30 +25,19 @@ function taskEvents(sim: Sim): Float64Array {
   return Float64Array.from(out);
 }
 
-/** 1 h of sync pulses at U(0.5, 1.5) s with 100 ppm drift, 0.5 ms jitter, 10 % dropped per side: ≈ 3,600 per side. */
-function harshPulses(): { reference: Float64Array; device: Float64Array } {
-  const r = rng(2024);
-  const ref: number[] = [];
-  const dev: number[] = [];
-  for (let t = 1, k = 0; k < 4000; k++, t += 0.5 + r.uniform()) {
-    if (!r.bernoulli(0.1)) ref.push(t + 0.5e-3 * r.normal());
-    if (!r.bernoulli(0.1)) dev.push(7.25 + (1 + 100e-6) * t + 0.5e-3 * r.normal());
-  }
-  return { reference: Float64Array.from(ref), device: Float64Array.from(dev) };
-}
-
 /**
- * 1 h of periodic barcodes every 1 s (16-bit counter, 10 ms cells), 100 ppm drift, 0.5 ms jitter,
- * 10 % dropped per side: ≈ 3,240 per side, with their codes.
+ * 1 h of sync pulses with 100 ppm drift, 0.5 ms jitter and 10 % dropped per side, each with its
+ * true index as code: 4,000 pulses at U(0.5, 1.5) s (≈3,600 per side), or 3,600 periodic barcodes
+ * 1 s apart (≈3,240 per side).
  */
-function harshBarcodes(): { reference: Float64Array; device: Float64Array; referenceCodes: Float64Array; deviceCodes: Float64Array } {
-  const r = rng(2025);
+function harshPulses(kind: 'random' | 'periodic' = 'random'): { reference: Float64Array; device: Float64Array; referenceCodes: Float64Array; deviceCodes: Float64Array } {
+  const r = rng(kind === 'random' ? 2024 : 2025);
   const ref: number[] = [];
   const dev: number[] = [];
   const rc: number[] = [];
   const dc: number[] = [];
-  for (let k = 0; k < 3600; k++) {
-    const t = 1 + k;
+  const total = kind === 'random' ? 4000 : 3600;
+  for (let t = 1, k = 0; k < total; k++, t += kind === 'random' ? 0.5 + r.uniform() : 1) {
     if (!r.bernoulli(0.1)) {
       ref.push(t + 0.5e-3 * r.normal());
       rc.push(k);
@@ -116,7 +105,7 @@ export const cases: BenchCase[] = [
   {
     name: 'align: clock sync, harsh 1 h pulses',
     size: '≈3,600 pulses per side (100 ppm, 0.5 ms jitter, 10 % drops)',
-    setup: harshPulses,
+    setup: () => harshPulses('random'),
     run: ({ reference, device }: { reference: Float64Array; device: Float64Array }) => fitClockMap(reference, device).pairs.reference.length,
     reps: 21,
     targetSec: 0.05,
@@ -135,8 +124,8 @@ export const cases: BenchCase[] = [
   {
     name: 'align: clock sync by barcode values, harsh 1 h',
     size: '≈3,240 periodic barcodes per side (100 ppm, 0.5 ms jitter, 10 % drops)',
-    setup: harshBarcodes,
-    run: (b: ReturnType<typeof harshBarcodes>) => fitClockMap(b.reference, b.device, { referenceCodes: b.referenceCodes, deviceCodes: b.deviceCodes }).pairs.reference.length,
+    setup: () => harshPulses('periodic'),
+    run: (b: ReturnType<typeof harshPulses>) => fitClockMap(b.reference, b.device, { referenceCodes: b.referenceCodes, deviceCodes: b.deviceCodes }).pairs.reference.length,
     reps: 21,
     targetSec: 0.05,
   },

@@ -20,6 +20,18 @@ function wrongPairs(sc: Scenario, map: ClockMap): number {
   return wrong;
 }
 
+/** Fit with `bits`-bit counter codes and check the issue-4 requirements: pieces, no wrong pair, recall, ≤ 0.5 ms at events. */
+function expectCodedSync(sc: Scenario, bits: number, pieces: number, recall: number, eventSeed: number): ClockMap {
+  const map = fitClockMap(sc.reference, sc.device, { referenceCodes: codeOf(sc.referenceId, bits), deviceCodes: codeOf(sc.deviceId, bits) });
+  expect(map.pieces).toHaveLength(pieces);
+  expect(wrongPairs(sc, map)).toBe(0);
+  expect(map.pairs.reference.length).toBeGreaterThanOrEqual(Math.floor(recall * sc.nShared));
+  const r = worstEventError(sc, map, eventSeed, 60, 3600);
+  expect(r.inside).toBeGreaterThan(1900);
+  expect(r.worst).toBeLessThanOrEqual(0.5e-3);
+  return map;
+}
+
 /** Largest |mapped − true| session time over events inside their piece's synchronised range. */
 function worstEventError(sc: Scenario, map: ClockMap, seed: number, fromSec: number, toSec: number): { worst: number; inside: number } {
   const r = rng(seed);
@@ -133,37 +145,17 @@ describe('fitClockMap with barcode codes', () => {
   it('periodic pulses without codes are ambiguous; with 16-bit codes every pair is right and events map within 0.5 ms', () => {
     const sc = makeScenario({ ...PERIODIC, seed: 11 });
     expect(() => fitClockMap(sc.reference, sc.device)).toThrow(expect.objectContaining({ code: 'TF_SYNC_FAILED' }));
-    const map = fitClockMap(sc.reference, sc.device, { referenceCodes: codeOf(sc.referenceId, 16), deviceCodes: codeOf(sc.deviceId, 16) });
-    expect(map.pieces).toHaveLength(1);
-    expect(wrongPairs(sc, map)).toBe(0);
-    expect(map.pairs.reference.length).toBeGreaterThanOrEqual(Math.floor(0.995 * sc.nShared));
-    const r = worstEventError(sc, map, 5, 60, 3600);
-    expect(r.inside).toBeGreaterThan(1900);
-    expect(r.worst).toBeLessThanOrEqual(0.5e-3);
+    expectCodedSync(sc, 16, 1, 0.995, 5);
   });
 
   it('places the repeated values of a 9-bit counter that wraps within the hour by the dominant clock offset', () => {
     // 719 barcodes, 512 values: ids 0–206 and 512–718 share values. A wrong occurrence sits 2,560 s away.
-    const sc = makeScenario({ ...PERIODIC, seed: 12 });
-    const map = fitClockMap(sc.reference, sc.device, { referenceCodes: codeOf(sc.referenceId, 9), deviceCodes: codeOf(sc.deviceId, 9) });
-    expect(map.pieces).toHaveLength(1);
-    expect(wrongPairs(sc, map)).toBe(0);
-    expect(map.pairs.reference.length).toBeGreaterThanOrEqual(Math.floor(0.995 * sc.nShared));
-    const r = worstEventError(sc, map, 6, 60, 3600);
-    expect(r.inside).toBeGreaterThan(1900);
-    expect(r.worst).toBeLessThanOrEqual(0.5e-3);
+    expectCodedSync(makeScenario({ ...PERIODIC, seed: 12 }), 9, 1, 0.995, 6);
   });
 
   it('splits at a device restart when the codes do not wrap (12 bits), mapping each stretch within 0.5 ms', () => {
-    const sc = makeScenario({ ...PERIODIC, seed: 14, jump: 'reset' });
-    const map = fitClockMap(sc.reference, sc.device, { referenceCodes: codeOf(sc.referenceId, 12), deviceCodes: codeOf(sc.deviceId, 12) });
-    expect(map.pieces).toHaveLength(2);
+    const map = expectCodedSync(makeScenario({ ...PERIODIC, seed: 14, jump: 'reset' }), 12, 2, 0.99, 7);
     expect(map.warnings.map((w) => w.code)).toContain('sync-clock-jump');
-    expect(wrongPairs(sc, map)).toBe(0);
-    expect(map.pairs.reference.length).toBeGreaterThanOrEqual(Math.floor(0.99 * sc.nShared));
-    const r = worstEventError(sc, map, 7, 60, 3600);
-    expect(r.inside).toBeGreaterThan(1900);
-    expect(r.worst).toBeLessThanOrEqual(0.5e-3);
   });
 
   it('refuses, rather than guesses, when a wrapped counter leaves a clock stretch placeable at several offsets', () => {
