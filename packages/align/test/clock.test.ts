@@ -150,6 +150,20 @@ describe('fitClockMap', () => {
     expect(() => fitClockMap(ref, dev)).toThrow(expect.objectContaining({ code: 'TF_SYNC_FAILED', details: expect.objectContaining({ reason: 'ambiguous' }) }));
   });
 
+  it('fitClockMap refuses periodic pulses with drops instead of returning a map off by whole periods (property over 48 sessions)', () => {
+    // Drops on each side make coincidental IPI patterns; with periodic pulses any shift by whole
+    // periods pairs every pulse equally well, so no map may be returned. Before the rival check,
+    // 12 of these 48 sessions (p = 2 s and 5 s) came back with every pair wrong.
+    for (const periodSec of [1, 2, 5]) {
+      for (let seed = 1; seed <= 8; seed++) {
+        for (const jump of ['none', 'reset'] as const) {
+          const sc = makeScenario({ ...HARSH, periodSec, seed, jump });
+          expect(() => fitClockMap(sc.reference, sc.device), `period ${periodSec} s, seed ${seed}, jump ${jump}`).toThrow(expect.objectContaining({ code: 'TF_SYNC_FAILED' }));
+        }
+      }
+    }
+  });
+
   it('fitClockMap throws TF_SYNC_FAILED when the trains share no interval pattern', () => {
     const r = rng(5);
     const a = new Float64Array(100);

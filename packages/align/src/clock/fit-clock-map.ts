@@ -2,7 +2,7 @@ import {
   TuningforkError, checkInteger, checkNonNegative, checkOneOf, checkPositive, checkRange, resolveOptions, toFloat64,
 } from '@tuningfork/core';
 import type { ResultWarning } from '@tuningfork/core';
-import { findAnchors, fitPiece, groupAnchors, ipiTolerance, okUnder } from '../internal/clock-match.js';
+import { findAnchors, fitPiece, groupAnchors, ipiTolerance, okUnder, rivalAlignment } from '../internal/clock-match.js';
 import type { Anchors, PiecePairs } from '../internal/clock-match.js';
 import { findCodeAnchors } from '../internal/code-anchors.js';
 import { fitLine } from '../internal/ols.js';
@@ -124,7 +124,13 @@ function rmsMax(res: Float64Array): [number, number] {
  * piece: least-squares line on its seed pairs; map every device pulse into reference time and pair
  * it with the nearest reference pulse within `pairRadius`·(smallest IPI), one to one; OLS; drop
  * pairs with |residual| > max(outlierSd·1.4826·MAD, 2·resolutionSec); refit until the pairs stop
- * changing. The border between two pieces is the cut that pairs the most pulses. (5) Report α, β,
+ * changing. The border between two pieces is the cut that pairs the most pulses. (4b) Without
+ * codes, each piece is checked against its rivals: the same line moved by the reference interval
+ * to the 1st–3rd neighbouring pulse on either side of its middle pair. If a rival pairs at least
+ * half as many device pulses within the fit's outlier cutoff, the trains are too regular (e.g.
+ * periodic) for the match to mean anything, and fitClockMap throws rather than return a map
+ * that may be off by whole pulses. Random intervals leave a rival about 2·cutoff·rate of the
+ * pulses (under 1 %). (5) Report α, β,
  * ppm, pairs, unmatched pulses per clock, RMS and maximum residual, and flags: |drift| > 500 ppm
  * (`sync-large-drift`, probably a wrong nominal rate) and max residual > 1 ms
  * (`sync-large-residual`) (common practice, no source). Use the same edge polarity on both sides:
@@ -329,6 +335,16 @@ export function fitClockMap(referencePulses: ArrayLike<number>, devicePulses: Ar
     if (n < minPairs) {
       warnings.push({ code: 'sync-piece-dropped', message: `${fn}: device pulses ${lo}–${hi} gave only ${n} pairs (minPairs ${minPairs}); left unsynchronised.`, details: { firstDevicePulse: lo, lastDevicePulse: hi, pairs: n } });
       continue;
+    }
+    if (!codes) {
+      const rival = rivalAlignment(A, B, lo, hi, fit);
+      if (rival.pairs >= 0.5 * n) {
+        throw new TuningforkError(
+          'TF_SYNC_FAILED',
+          `${fn}: the pulses are too regular to be matched: shifting device pulses ${lo}–${hi} by ${rival.shiftSec.toFixed(6)} s onto other reference pulses pairs ${rival.pairs} of them as well as the fit's ${n}. Periodic pulses cannot be re-matched after drops; send random intervals or barcodes (decodeBarcodes, then referenceCodes / deviceCodes).`,
+          { fn, reason: 'ambiguous', piece: pieces.length, pairs: n, rivalPairs: rival.pairs, rivalShiftSec: rival.shiftSec },
+        );
+      }
     }
     if (fit.ai[0]! <= lastRef) {
       throw new TuningforkError('TF_SYNC_FAILED', `${fn}: clock piece ${pieces.length} (device pulses ${lo}–${hi}) maps onto reference pulses already used by the previous piece; the pulse trains cannot be matched consistently.`, { fn, piece: pieces.length });

@@ -315,3 +315,24 @@ export function okUnder(A: Float64Array, B: Float64Array, jLo: number, jHi: numb
   }
   return out;
 }
+
+/**
+ * The best rival of a fitted piece: its line moved by A[m + s] − A[m] (s = ±1, ±2, ±3, m the
+ * reference index of the middle pair), i.e. onto neighbouring reference pulses. Returns how many
+ * device pulses lo…hi the best rival pairs within the fit's cutoff, and its shift (seconds).
+ */
+export function rivalAlignment(A: Float64Array, B: Float64Array, lo: number, hi: number, fit: PiecePairs): { pairs: number; shiftSec: number } {
+  let best = { pairs: 0, shiftSec: NaN };
+  const n = fit.ai.length;
+  if (n === 0 || !(fit.cutoff > 0)) return best;
+  const m = fit.ai[n >> 1]!;
+  for (const s of [-3, -2, -1, 1, 2, 3]) {
+    if (m + s < 0 || m + s >= A.length) continue;
+    const shift = A[m + s]! - A[m]!;
+    const ok = okUnder(A, B, lo, hi, { a: fit.line.a + shift, b: fit.line.b }, fit.cutoff);
+    let pairs = 0;
+    for (let q = 0; q < ok.length; q++) pairs += ok[q]!;
+    if (pairs > best.pairs) best = { pairs, shiftSec: shift };
+  }
+  return best;
+}
