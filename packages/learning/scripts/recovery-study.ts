@@ -21,6 +21,7 @@ import type { Matrix } from '@tuningfork/core';
 import { SIMULATE_DEFAULTS, simulateSession } from '@tuningfork/simulate';
 import { RECOVERY_RANGES, choiceRegressors, fitChoiceModel, modelRecovery, parameterRecovery } from '@tuningfork/learning';
 import type { ChoiceParamName, ChoicePriors, ParameterRecovery, ParameterRecoveryOptions } from '@tuningfork/learning';
+import { DEF, NAMES, POPULATIONS, logistic, logit } from './populations.js';
 
 function arg(name: string, fallback: string): string {
   const i = process.argv.indexOf(`--${name}`);
@@ -36,7 +37,6 @@ const scaling = scalingArg === 'none' ? [] : scalingArg.split(',').map(Number);
 const f3 = (x: number) => (Number.isFinite(x) ? x.toFixed(3) : String(x));
 const f2 = (x: number) => (Number.isFinite(x) ? x.toFixed(2) : String(x));
 const TARGET = 0.9;
-const NAMES = ['alpha', 'beta', 'alphaC', 'betaC'] as const;
 // Per-agent estimators (sections 1 and 3).
 const ESTIMATORS: readonly { label: string; priors: ChoicePriors }[] = [
   { label: 'ML', priors: 'none' },
@@ -106,48 +106,8 @@ function matrixTable(m: Matrix, rows: readonly string[], cols: readonly string[]
   return `${head}\n${body}`;
 }
 
-// ---- populations of agents ------------------------------------------------------------------
+// ---- populations of agents: scripts/populations.ts ----------------------------------------
 const D = SIMULATE_DEFAULTS;
-const DEF: Record<(typeof NAMES)[number], number> = { alpha: D.alpha, beta: D.beta, alphaC: D.alphaC, betaC: D.betaC };
-const logit = (x: number) => Math.log(x / (1 - x));
-const logistic = (x: number) => 1 / (1 + Math.exp(-x));
-/** The width of RECOVERY_RANGES[name] on its unbounded scale (logit / log / linear), centred on c. */
-function recentred(name: (typeof NAMES)[number], c: number): readonly [number, number] {
-  const [lo, hi] = RECOVERY_RANGES[name];
-  if (name === 'alpha' || name === 'alphaC') {
-    const w = (logit(hi) - logit(lo)) / 2;
-    return [logistic(logit(c) - w), logistic(logit(c) + w)];
-  }
-  if (name === 'beta') {
-    const w = Math.sqrt(hi / lo);
-    return [c / w, c * w];
-  }
-  return [c - (hi - lo) / 2, c + (hi - lo) / 2];
-}
-type Population = { key: string; label: string; why: string; ranges: Partial<Record<ChoiceParamName, readonly [number, number]>>; drawScale: 'natural' | 'unbounded' };
-const POPULATIONS: Population[] = [
-  {
-    key: 'wide',
-    label: 'wide: the library default ranges (RECOVERY_RANGES), uniform',
-    why: 'the plausible range the library uses by default (Wilson & Collins 2019, rule 5); centred on α 0.5, β 5.5, not on the simulator defaults',
-    ranges: {},
-    drawScale: 'natural',
-  },
-  {
-    key: 'centred',
-    label: 'centred: the same spread, centred on the simulator defaults',
-    why: `RECOVERY_RANGES' width on each parameter's unbounded scale (logit α and α_C ± 2.20, log β × ÷ √10, β_C ± 1.25), centred on the simulator defaults α ${DEF.alpha}, β ${DEF.beta}, α_C ${DEF.alphaC}, β_C ${DEF.betaC}; uniform on that scale (drawScale 'unbounded')`,
-    ranges: Object.fromEntries(NAMES.map((n) => [n, recentred(n, DEF[n])])),
-    drawScale: 'unbounded',
-  },
-  {
-    key: 'narrow',
-    label: 'narrow: the simulator defaults ± 50 %, uniform',
-    why: 'a tight population (every parameter within a factor 1.5 of the default): the hardest case for a correlation',
-    ranges: Object.fromEntries(NAMES.map((n) => [n, [DEF[n] * 0.5, DEF[n] * 1.5] as const])),
-    drawScale: 'natural',
-  },
-];
 const rangeText = (r: readonly [number, number]) => `[${f3(r[0])}, ${f3(r[1])}]`;
 
 console.log(`# Recovery study — ${nAgents} agents × ${nTrials} trials, ${starts} starts per fit, ${workers} worker thread(s), seed ${seed}\n`);
