@@ -116,6 +116,22 @@ describe('decodeBarcodes', () => {
     expect(cut.warnings.map((w) => w.code)).toEqual(['barcodes-rejected', 'barcodes-none']);
   });
 
+  it('rejects a first barcode that may have been cut by the recording start instead of reading its tail as a header', () => {
+    // Recording starts at 0.95 s inside a barcode that began at 0.93 s: what is left is a
+    // 20 ms pulse of two 1-cells (exactly a header's width), then data pulses — barcode 178
+    // follows at 2.0 s. Without the recording start the tail would decode as a barcode.
+    const f = { bitSec: 0.01, nBits: 8 };
+    const tail = { starts: [0.96, 1.01, 2.0, 2.04, 2.07, 2.1], ends: [0.98, 1.02, 2.02, 2.05, 2.09, 2.11] };
+    expect(decodeBarcodes(tail, f).values.length).toBe(2); // the risk being guarded
+    const r = decodeBarcodes(tail, { ...f, recordingStartSec: 0.95 });
+    expect(Array.from(r.values)).toEqual([178]);
+    expect(r.rejected.reasons).toEqual(['truncated']);
+    // A pulse already active at the first sample (open bit 1) is cut too.
+    const open = decodeBarcodes({ ...tail, open: [1, 0, 0, 0, 0, 0] }, f);
+    expect(Array.from(open.values)).toEqual([178]);
+    expect(open.rejected.reasons).toEqual(['truncated']);
+  });
+
   it('throws coded errors for missing or impossible formats and malformed pulses', () => {
     const code = (f: () => unknown) => {
       try {

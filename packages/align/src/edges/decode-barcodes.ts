@@ -46,6 +46,8 @@ export interface DecodeBarcodesOptions {
   toleranceSec?: number;
   /** Inactive time before a pulse that makes it a barcode candidate (needed for the first barcode and after a rejected one), seconds. @defaultValue longer than any inactive run inside a barcode: headerGapSec + (nBits + 1) · bitSec */
   quietSec?: number;
+  /** Start of the recording, seconds: a first pulse less than `quietSec` after it may be the tail of a barcode cut by the start and is rejected as 'truncated'. @defaultValue -Infinity (the first pulse is taken to be a header) */
+  recordingStartSec?: number;
   /** End of the recording, seconds: a barcode that would end after it is rejected as 'truncated'. @defaultValue Infinity (every barcode is taken to be complete) */
   recordingEndSec?: number;
 }
@@ -58,6 +60,7 @@ const DEFAULTS = Object.freeze({
   bitOrder: 'lsb-first' as 'lsb-first' | 'msb-first',
   toleranceSec: null as number | null,
   quietSec: null as number | null,
+  recordingStartSec: -Infinity,
   recordingEndSec: Infinity,
 });
 
@@ -78,7 +81,10 @@ const DEFAULTS = Object.freeze({
  * ('header-width'). Every later edge before the barcode's end must fall within `toleranceSec` of
  * a cell boundary t0 + headerSec + headerGapSec + m·bitSec, m = 0 … nBits ('misaligned-edge': a
  * wrong bitSec or a glitch); a pulse may not outlast the barcode ('overrun'), nor may the barcode
- * end after `recordingEndSec` or in a pulse cut by the recording's end ('truncated'). Bit k is 1
+ * begin within `quietSec` of `recordingStartSec` or in a pulse cut by the recording's start, or
+ * end after `recordingEndSec` or in a pulse cut by its end ('truncated': the line was not seen
+ * quiet before the header, or not to the barcode's end). Pass both recording bounds (a line's
+ * t0 and end) whenever the line may start or stop mid-barcode. Bit k is 1
  * when the middle of cell k lies inside a pulse. Rejected candidates are listed with their reason
  * and reported in a warning; they are never given a value. Clock drift within one barcode
  * (100 ppm × 0.5 s = 50 µs) is far below the tolerance.
@@ -116,7 +122,10 @@ export function decodeBarcodes(pulses: BarcodePulses, options: DecodeBarcodesOpt
   const dataSec = nBits * bitSec;
   const quietSec = checkPositive(fn, 'quietSec', o.quietSec ?? headerGapSec + dataSec + bitSec);
   const endSec = o.recordingEndSec;
-  if (typeof endSec !== 'number' || Number.isNaN(endSec)) throw new TuningforkError('TF_BAD_OPTION', `${fn}: recordingEndSec must be a number of seconds (Infinity if unknown), got ${String(endSec)}.`, { fn, option: 'recordingEndSec' });
+  const startSec = o.recordingStartSec;
+  for (const [name, v] of [['recordingStartSec', startSec], ['recordingEndSec', endSec]] as const) {
+    if (typeof v !== 'number' || Number.isNaN(v)) throw new TuningforkError('TF_BAD_OPTION', `${fn}: ${name} must be a number of seconds (±Infinity if unknown), got ${String(v)}.`, { fn, option: name });
+  }
 
   const S = toFloat64(checkNumberArray(fn, 'pulses.starts', pulses.starts));
   const E = toFloat64(checkNumberArray(fn, 'pulses.ends', pulses.ends));
@@ -150,7 +159,8 @@ export function decodeBarcodes(pulses: BarcodePulses, options: DecodeBarcodesOpt
     // Pulses of this candidate: those starting before its end (plus the tolerance).
     let last = k;
     while (last + 1 < S.length && S[last + 1]! < tEnd + tol) last++;
-    const reason = checkCandidate(S, E, open, k, last, t0, tEnd, headerSec, dataStart, bitSec, nBits, tol, endSec);
+    const cutAtStart = (k === 0 && t0 - startSec < quietSec) || (open !== undefined && (open[k]! & 1) !== 0);
+    const reason = cutAtStart ? 'truncated' : checkCandidate(S, E, open, k, last, t0, tEnd, headerSec, dataStart, bitSec, nBits, tol, endSec);
     if (reason !== null) {
       rejTimes.push(t0);
       reasons.push(reason);
