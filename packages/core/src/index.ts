@@ -14,7 +14,7 @@ export { Rng, rng } from './rng.js';
 // Types and constructors
 export type {
   UniformSignal, TimestampedSignal, Matrix, SpikeTrain, PhotometrySite, EventTable, TrialTable,
-  Session, PeriEventMatrix, ResultWarning,
+  Session, PeriEventMatrix, ResultWarning, BarcodeFormat, DeviceClockSpec, DeviceEvents,
 } from './types.js';
 export { toFloat64, sampleTime, timeToIndex, signalDuration, checkSampleRate, uniformSignal, inferSampleRate, selectKth } from './time.js';
 export type { InferSampleRateOptions } from './time.js';

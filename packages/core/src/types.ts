@@ -68,6 +68,43 @@ export interface TrialTable {
 }
 
 /** A loaded recording session on one clock. */
+/** Barcode format of sync pulses (see align's decodeBarcodes: header pulse, header gap, data cells). */
+export interface BarcodeFormat {
+  /** Duration of one data cell, seconds. */
+  readonly bitSec: number;
+  /** Data bits per barcode, 1–52. */
+  readonly nBits: number;
+  /** Header pulse width, seconds (default 2 · bitSec). */
+  readonly headerSec?: number;
+  /** Inactive time between header and first cell, seconds (default bitSec). */
+  readonly headerGapSec?: number;
+  /** Cell order (default 'lsb-first'). */
+  readonly bitOrder?: 'lsb-first' | 'msb-first';
+}
+
+/** How a device's events are put on the session clock: sync pulses both clocks recorded. */
+export interface DeviceClockSpec {
+  /** Name of the device's own sync events (its copy of the pulses, on its clock). */
+  readonly syncEvent: string;
+  /**
+   * The session clock's copy of the same pulses: the events of this name in `Session.events`, or
+   * the pulses of this continuous channel (a TTL line, thresholded at `threshold`, default the
+   * line's mid-level).
+   */
+  readonly reference: { readonly events: string } | { readonly line: string; readonly threshold?: number };
+  /** The pulses are barcodes of this format: the device codes are its sync events' values, the reference codes are decoded from the line (or are the reference events' values). null: plain pulses matched by their intervals. */
+  readonly barcodes: BarcodeFormat | null;
+}
+
+/** Events a second device logged on its own clock, waiting to be put on the session clock. */
+export interface DeviceEvents {
+  /** Where they came from (e.g. `files[3] (box.csv)`), for messages and outputs. */
+  readonly source: string;
+  /** Events on the device's clock, seconds; its sync events are among them. */
+  readonly events: EventTable;
+  readonly clock: DeviceClockSpec;
+}
+
 export interface Session {
   readonly id: string;
   /** Start and end of the recording on the session clock, seconds. */
@@ -79,6 +116,8 @@ export interface Session {
   readonly trials?: TrialTable;
   /** Continuous behavioural signals by name (e.g. 'accel' magnitude in g, 'wheel' position). */
   readonly continuous: Readonly<Record<string, UniformSignal>>;
+  /** Events of other devices still on their own clocks (the pipeline's first step maps them into `events`). */
+  readonly deviceEvents?: readonly DeviceEvents[];
 }
 
 /**

@@ -96,6 +96,36 @@ describe('validateManifest', () => {
   });
 });
 
+describe('validateManifest: events on another device\'s clock', () => {
+  const withClock = (clock: unknown, extraFiles: Record<string, unknown>[] = []) => ({
+    schemaVersion: 1, session: 's',
+    files: [{ kind: 'continuous', path: 'ttl.csv', channels: [{ name: 'ttl', column: 'v' }] }, { kind: 'events', path: 'box.csv', clock }, ...extraFiles],
+  });
+
+  it('reads a clock spec with a line or an events reference, barcodes optional, and defaults to null', () => {
+    const a = validateManifest(withClock({ syncEvent: 'sync', reference: { line: 'ttl', threshold: 2.5 }, barcodes: { bitSec: 0.01, nBits: 16, bitOrder: 'msb-first' } }));
+    expect(a.files[1]).toMatchObject({ clock: { syncEvent: 'sync', reference: { line: 'ttl', threshold: 2.5 }, barcodes: { bitSec: 0.01, nBits: 16, bitOrder: 'msb-first' } } });
+    const b = validateManifest(withClock({ syncEvent: 'sync', reference: { events: 'sync_in' } }));
+    expect(b.files[1]).toMatchObject({ clock: { syncEvent: 'sync', reference: { events: 'sync_in' }, barcodes: null } });
+    expect(validateManifest({ ...minimal(), files: minimal().files.slice(0, 2) }).files[1]).toMatchObject({ clock: null });
+  });
+
+  it('names the JSON path of every bad clock field', () => {
+    const bad: [unknown, string][] = [
+      [{ reference: { line: 'ttl' } }, 'files[1].clock.syncEvent'],
+      [{ syncEvent: 'sync' }, 'files[1].clock.reference'],
+      [{ syncEvent: 'sync', reference: { line: 'ttl', events: 'x' } }, 'files[1].clock.reference'],
+      [{ syncEvent: 'sync', reference: { events: 'x', threshold: 1 } }, 'files[1].clock.reference.threshold'],
+      [{ syncEvent: 'sync', reference: { line: 'nope' } }, 'files[1].clock.reference.line'],
+      [{ syncEvent: 'sync', reference: { line: 'ttl' }, barcodes: { bitSec: 0.01 } }, 'files[1].clock.barcodes.nBits'],
+      [{ syncEvent: 'sync', reference: { line: 'ttl' }, barcodes: { bitSec: -1, nBits: 8 } }, 'files[1].clock.barcodes.bitSec'],
+      [{ syncEvent: 'sync', reference: { line: 'ttl' }, barcodes: { bitSec: 0.01, nBits: 64 } }, 'files[1].clock.barcodes.nBits'],
+      [{ syncEvent: 'sync', refrence: { line: 'ttl' } }, 'files[1].clock.refrence'],
+    ];
+    for (const [clock, path] of bad) expect(() => validateManifest(withClock(clock)), path).toThrow(code('TF_BAD_MANIFEST', { path }));
+  });
+});
+
 describe('readManifest', () => {
   it('readManifest reports invalid JSON as TF_BAD_MANIFEST with its line and column', async () => {
     const p = join(tmp, 'broken.json');
@@ -154,6 +184,28 @@ describe('loadSession', () => {
     // Span: photometry 10 s … 10 + 300/100 s; accel 10 … 12.5 s; events and spikes inside.
     expect([session.start, session.end]).toEqual([10, 13]);
     expect(warnings.map((w) => w.code)).toEqual(['IO_EVENTS_SORTED']); // events.tsv lists choice after reward
+  });
+
+  it('loadSession keeps events on a device clock apart, with their clock spec, out of the events and the span', async () => {
+    writeFileSync(join(dir, 'raw', 'box.csv'), 'time,name,value\n0.5,sync,0\n1.5,cue,0\n900,reward,1\n');
+    await writeJson(join(dir, 'device.json'), {
+      schemaVersion: 1, session: 'rat07-d12',
+      files: [
+        { kind: 'photometry', path: 'raw/photometry.csv', columns: { time: 't' }, sites: [{ name: 'DMS', signal: 'dms_g', control: 'dms_uv' }] },
+        { kind: 'events', path: 'raw/events.tsv', timeUnit: 'ms', columns: { name: 'event' } },
+        { kind: 'events', path: 'raw/box.csv', clock: { syncEvent: 'sync', reference: { events: 'cue' } } },
+      ],
+    });
+    const { session } = await loadSession(join(dir, 'device.json'), { hash: false });
+    expect(session.events.name).toEqual(['cue', 'choice', 'reward']);
+    expect(session.deviceEvents).toHaveLength(1);
+    const d = session.deviceEvents![0]!;
+    expect(d.source).toBe('files[2] (raw/box.csv)');
+    expect(d.events.name).toEqual(['sync', 'cue', 'reward']);
+    expect(d.clock).toEqual({ syncEvent: 'sync', reference: { events: 'cue' }, barcodes: null });
+    expect([session.start, session.end]).toEqual([10, 13]); // the device's 900 s is on another clock
+    const plain = await loadSession(join(dir, 'session.json'), { hash: false });
+    expect(plain.session.deviceEvents).toBeUndefined();
   });
 
   it('loadSession reports the SHA-256 of the manifest and of every input file for provenance', async () => {

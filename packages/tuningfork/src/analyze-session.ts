@@ -17,6 +17,8 @@ import { binMean } from './internal/bin-mean.js';
 import { EVENT_NAMES, trialsFromEvents } from './internal/trials.js';
 import { buildOutputs } from './internal/outputs.js';
 import type { ProgressCallback, SessionOutputs } from './pipeline-types.js';
+import { syncDeviceEvents } from './sync-device-events.js';
+import type { DeviceClockResult, SyncDeviceEventsOptions } from './sync-device-events.js';
 
 /** Which events make up each peri-event response: event label → condition label → event names. */
 export type ResponseSpec = Readonly<Record<string, Readonly<Record<string, readonly string[]>>>>;
@@ -71,6 +73,8 @@ export interface EncodeStepOptions {
 export interface AnalyzeSessionOptions {
   /** Seed of every random draw (learning starts, bootstraps, shift nulls). @defaultValue 0 */
   seed?: number;
+  /** Putting `session.deviceEvents` on the session clock (syncDeviceEvents). @defaultValue {} */
+  sync?: SyncDeviceEventsOptions;
   /** Photometry conditioning (signal.conditionSite). @defaultValue {} */
   condition?: ConditionSiteOptions;
   /** Per-site quality report (signal.siteQuality). @defaultValue true */
@@ -126,8 +130,10 @@ export interface SessionAnalysis {
   readonly seed: number;
   readonly sites: readonly SiteResult[];
   readonly trials: TrialTable;
-  /** Events on the session clock, with detected movement onsets added as `move_onset` (value = vigour). */
+  /** Events on the session clock (other devices' events mapped in), with detected movement onsets added as `move_onset` (value = vigour). */
   readonly events: EventTable;
+  /** Clock maps of the devices whose events were mapped onto the session clock (empty when none). */
+  readonly clocks: readonly DeviceClockResult[];
   readonly movement: { readonly source: 'detected' | 'events' | 'none'; readonly onsets: Float64Array; readonly vigour: Float64Array; readonly detection: MovementOnsetsResult | null };
   readonly learning: { readonly fit: ChoiceModelFit; readonly regressors: ChoiceRegressors } | null;
   readonly responses: readonly ResponseResult[];
@@ -146,6 +152,7 @@ export interface AnalyzeHooks {
 
 const DEFAULTS = Object.freeze({
   seed: 0,
+  sync: {} as SyncDeviceEventsOptions,
   condition: {} as ConditionSiteOptions,
   qc: true,
   movementSignal: 'accel' as string | null,
@@ -185,7 +192,8 @@ export const BAND_ASSUMPTIONS =
   'significant runs use the consecutive-threshold rule (a heuristic, not exact family-wise control)';
 
 /**
- * Analyse one session end to end: photometry conditioning and QC, movement onsets, the learning
+ * Analyse one session end to end: other devices' events onto the session clock (syncDeviceEvents,
+ * when `session.deviceEvents` is set), photometry conditioning and QC, movement onsets, the learning
  * model and its per-trial RPE/APE, peri-event matrices with bootstrap bands and significant runs,
  * encoding models with unique ΔR² and circular-shift nulls, and per-cell classes with FDR control.
  * Every step's options can be overridden; every intermediate result is returned, and the tidy
@@ -200,7 +208,7 @@ export const BAND_ASSUMPTIONS =
  * @throws {TuningforkError} TF_UNKNOWN_OPTION / TF_BAD_OPTION for options; the stages' codes for
  *   data they cannot analyse (each names the step and the site, unit or trial).
  */
-export async function analyzeSession(session: Session, options: AnalyzeSessionOptions = {}, hooks: AnalyzeHooks = {}): Promise<SessionAnalysis> {
+export async function analyzeSession(input: Session, options: AnalyzeSessionOptions = {}, hooks: AnalyzeHooks = {}): Promise<SessionAnalysis> {
   const fn = 'analyzeSession';
   const o = resolveOptions(fn, DEFAULTS, options);
   const seed = checkInteger(fn, 'seed', o.seed, 0, 2 ** 32 - 1);
@@ -210,7 +218,7 @@ export async function analyzeSession(session: Session, options: AnalyzeSessionOp
   const compact = checkOneOf(fn, 'intermediates', o.intermediates, ['all', 'outputs'] as const) === 'outputs';
   const peri = resolveOptions(`${fn} periEvent`, PERI_DEFAULTS, o.periEvent) as Required<PeriEventStepOptions>;
   const enc = o.encode === false ? null : (resolveOptions(`${fn} encode`, ENCODE_DEFAULTS, o.encode) as Required<EncodeStepOptions>);
-  checkSession(fn, session);
+  checkSession(fn, input);
   const progress = hooks.onProgress ?? (() => {});
   const root = rng(seed);
   const subSeed = (k: number) => root.stream(k).nextUint32();
@@ -225,6 +233,11 @@ export async function analyzeSession(session: Session, options: AnalyzeSessionOp
     await new Promise((r) => setImmediate(r)); // let progress output and signals through
     return out;
   };
+
+  // 0. Other devices' events onto the session clock.
+  const synced = input.deviceEvents?.length ? await timed('sync', () => syncDeviceEvents(input, o.sync)) : syncDeviceEvents(input, o.sync);
+  const session = synced.session;
+  warnings.push(...synced.warnings);
 
   // 1. Photometry conditioning (and QC).
   const sites = await timed('condition', () => session.photometry.map((site, i) => {
@@ -262,7 +275,7 @@ export async function analyzeSession(session: Session, options: AnalyzeSessionOp
     ...session.units.map((u) => hashInput(`${u.name}/spikes`, u.times)),
     hashInput('events/time', session.events.time),
   ]);
-  const partial = { sessionId: session.id, seed, sites, trials, events, movement, learning, responses, encoding, timings, warnings };
+  const partial = { sessionId: session.id, seed, sites, trials, events, clocks: synced.clocks, movement, learning, responses, encoding, timings, warnings };
   const outputs = await timed('outputs', () => buildOutputs(session, partial, { traceRate, report: wantReport, provenance, assumptions: BAND_ASSUMPTIONS }));
   return { ...partial, outputs };
 }

@@ -17,6 +17,8 @@ export { core, io, signal, align, stats, learning, encode, simulate, report };
 
 // The session pipeline
 export { analyzeSession, DEFAULT_RESPONSES, BAND_ASSUMPTIONS } from './analyze-session.js';
+export { syncDeviceEvents } from './sync-device-events.js';
+export type { DeviceClockResult, SyncDeviceEventsOptions, SyncDeviceEventsResult } from './sync-device-events.js';
 export type {
   AnalyzeSessionOptions, AnalyzeHooks, SessionAnalysis, SiteResult, ResponseResult, ResponseSpec, PeriEventStepOptions, EncodeStepOptions,
 } from './analyze-session.js';

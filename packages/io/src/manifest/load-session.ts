@@ -1,6 +1,6 @@
 import {
   TuningforkError, isTuningforkError, makeEventTable, resolveOptions, sha256File,
-  type EventTable, type PhotometrySite, type ProvenanceInput, type ResultWarning, type Session, type SpikeTrain,
+  type DeviceEvents, type EventTable, type PhotometrySite, type ProvenanceInput, type ResultWarning, type Session, type SpikeTrain,
   type TrialTable, type UniformSignal,
 } from '@tuningfork/core';
 import { readEvents } from '../readers/read-events.js';
@@ -18,7 +18,7 @@ export interface LoadSessionOptions {
 
 /** A session loaded from a manifest, with what is needed to record its provenance. */
 export interface LoadedSession {
-  /** The session: photometry sites, units, events, trials, continuous signals, on one clock. */
+  /** The session: photometry sites, units, events, trials, continuous signals, on one clock, plus `deviceEvents`: events files with a `clock`, still on their device's clock. */
   readonly session: Session;
   /** The validated manifest (paths resolved). */
   readonly manifest: SessionManifest;
@@ -63,7 +63,10 @@ async function traceOf(f: ManifestFile & { kind: 'photometry' | 'continuous' }, 
  * readEvents, spikes with readSpikes, trials with readTrials — converting time units to
  * seconds. Photometry sites pair their signal and control columns (same grid); events of
  * several files are merged and sorted by time; unit labels get the file's `unitPrefix` and must
- * be unique. The session's `start`/`end` span every signal, event, spike and trial time.
+ * be unique. Events files with a `clock` are on another device's clock: they are not merged but
+ * kept in `session.deviceEvents` with their clock spec, for the pipeline's sync step (the
+ * tuningfork package's syncDeviceEvents) to map. The session's `start`/`end` span every signal,
+ * session-clock event, spike and trial time.
  * Each input's SHA-256 is computed with core sha256File, for provenance.
  *
  * @param manifestPath - Path of the manifest JSON; relative file paths resolve against its folder.
@@ -89,6 +92,7 @@ export async function loadSession(manifestPath: string, options: LoadSessionOpti
   const units: SpikeTrain[] = [];
   const unitFrom = new Map<string, string>();
   const eventParts: EventTable[] = [];
+  const deviceEvents: DeviceEvents[] = [];
   let trials: TrialTable | undefined;
   for (const f of manifest.files) {
     try {
@@ -115,7 +119,8 @@ export async function loadSession(manifestPath: string, options: LoadSessionOpti
         case 'events': {
           const r = await readEvents(f.resolvedPath, { format: readerFormat(f), ...f.columns, timeUnit: f.timeUnit, duplicates: f.duplicates, csv: f.csv });
           warnings.push(...r.warnings);
-          eventParts.push(r.events);
+          if (f.clock === null) eventParts.push(r.events);
+          else deviceEvents.push({ source: `${f.at} (${f.path})`, events: r.events, clock: f.clock });
           break;
         }
         case 'spikes': {
@@ -188,6 +193,7 @@ export async function loadSession(manifestPath: string, options: LoadSessionOpti
     events,
     ...(trials !== undefined ? { trials } : {}),
     continuous,
+    ...(deviceEvents.length > 0 ? { deviceEvents } : {}),
   };
   const inputs: ProvenanceInput[] = [];
   if (o.hash) {

@@ -1,3 +1,4 @@
+import type { DeviceClockSpec } from '@tuningfork/core';
 import type { TrialField } from '../readers/read-trials.js';
 
 /** The manifest schema version this package reads and writes. */
@@ -63,6 +64,12 @@ export interface EventsFileEntry extends FileBase {
   readonly kind: 'events';
   readonly columns: { readonly time: string; readonly name: string; readonly value: string };
   readonly duplicates: 'keep' | 'drop' | 'error';
+  /**
+   * null: the events are on the session clock. Otherwise they are on another device's clock and
+   * this says how to map them (sync events of this file, the session clock's copy of the pulses,
+   * barcode format); loadSession keeps them apart in `session.deviceEvents`.
+   */
+  readonly clock: DeviceClockSpec | null;
 }
 
 /** A spike file: `unit,time`. */

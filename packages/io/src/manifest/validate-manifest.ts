@@ -1,5 +1,6 @@
 import { isAbsolute, resolve } from 'node:path';
 import { TuningforkError, closestKey, formatValue } from '@tuningfork/core';
+import type { DeviceClockSpec } from '@tuningfork/core';
 import type { TrialField } from '../readers/read-trials.js';
 import {
   MANIFEST_SCHEMA_VERSION,
@@ -23,7 +24,7 @@ const COMMON_FILE_KEYS = ['kind', 'path', 'format', 'timeUnit', 'columns', 'csv'
 const KIND_KEYS: Readonly<Record<FileKind, readonly string[]>> = {
   photometry: ['sites', 'jitterTolerance'],
   continuous: ['channels', 'jitterTolerance'],
-  events: ['duplicates'],
+  events: ['duplicates', 'clock'],
   spikes: ['unitPrefix'],
   trials: ['choiceLabels', 'nOptions'],
 };
@@ -117,6 +118,50 @@ function positive(c: Checker, v: unknown, at: string, dflt: number): number {
   return v;
 }
 
+function finitePositive(c: Checker, v: unknown, at: string): number {
+  if (typeof v !== 'number' || !Number.isFinite(v) || v <= 0) c.fail(at, `must be a number of seconds > 0, got ${formatValue(v)}.`);
+  return v;
+}
+
+/** An events file's `clock`: { syncEvent, reference: { events } | { line, threshold? }, barcodes? }. */
+function clockSpec(c: Checker, v: unknown, at: string): DeviceClockSpec {
+  const o = c.object(v, at);
+  c.keys(o, at, ['syncEvent', 'reference', 'barcodes', 'notes'], 'a device clock');
+  if (o.syncEvent === undefined) c.fail(join(at, 'syncEvent'), "is required: the name of this file's sync events (the device's copy of the sync pulses).");
+  const syncEvent = c.string(o.syncEvent, join(at, 'syncEvent'));
+  const rAt = join(at, 'reference');
+  if (o.reference === undefined) c.fail(rAt, 'is required: { "events": name } (session-clock events of the same pulses) or { "line": channel } (a TTL line among the continuous channels).');
+  const r = c.object(o.reference, rAt);
+  c.keys(r, rAt, ['events', 'line', 'threshold'], 'a clock reference');
+  let reference: DeviceClockSpec['reference'];
+  if ((r.events === undefined) === (r.line === undefined)) c.fail(rAt, 'must give exactly one of "events" (session-clock events of the sync pulses) and "line" (a continuous channel carrying them).');
+  if (r.events !== undefined) {
+    if (r.threshold !== undefined) c.fail(join(rAt, 'threshold'), 'applies to a "line" reference only.');
+    reference = { events: c.string(r.events, join(rAt, 'events'), 'a non-empty string (an event name)') };
+  } else {
+    const line = c.string(r.line, join(rAt, 'line'), 'a non-empty string (a continuous channel name)');
+    if (r.threshold !== undefined && (typeof r.threshold !== 'number' || !Number.isFinite(r.threshold))) c.fail(join(rAt, 'threshold'), `must be a finite number (the line level between low and high), got ${formatValue(r.threshold)}.`);
+    reference = r.threshold === undefined ? { line } : { line, threshold: r.threshold as number };
+  }
+  let barcodes: DeviceClockSpec['barcodes'] = null;
+  if (o.barcodes !== undefined && o.barcodes !== null) {
+    const bAt = join(at, 'barcodes');
+    const b = c.object(o.barcodes, bAt);
+    c.keys(b, bAt, ['bitSec', 'nBits', 'headerSec', 'headerGapSec', 'bitOrder'], 'a barcode format');
+    if (b.bitSec === undefined) c.fail(join(bAt, 'bitSec'), 'is required: seconds per data cell, as the sender emits.');
+    if (b.nBits === undefined) c.fail(join(bAt, 'nBits'), 'is required: data bits per barcode, as the sender emits.');
+    if (typeof b.nBits !== 'number' || !Number.isInteger(b.nBits) || b.nBits < 1 || b.nBits > 52) c.fail(join(bAt, 'nBits'), `must be an integer from 1 to 52, got ${formatValue(b.nBits)}.`);
+    barcodes = {
+      bitSec: finitePositive(c, b.bitSec, join(bAt, 'bitSec')),
+      nBits: b.nBits as number,
+      ...(b.headerSec !== undefined ? { headerSec: finitePositive(c, b.headerSec, join(bAt, 'headerSec')) } : {}),
+      ...(b.headerGapSec !== undefined ? { headerGapSec: finitePositive(c, b.headerGapSec, join(bAt, 'headerGapSec')) } : {}),
+      ...(b.bitOrder !== undefined ? { bitOrder: c.oneOf(b.bitOrder, join(bAt, 'bitOrder'), ['lsb-first', 'msb-first'] as const) } : {}),
+    };
+  }
+  return { syncEvent, reference, barcodes };
+}
+
 /**
  * Validate a parsed session manifest (schema version 1) and fill in defaults.
  *
@@ -138,7 +183,12 @@ function positive(c: Checker, v: unknown, at: string, dflt: number): number {
  * decimal, commentPrefix, nullTokens. Photometry files need `sites` ({name, signal, control});
  * continuous files need `channels` ({name, column}); `jitterTolerance` (default 0.1), events
  * `duplicates` ('keep' | 'drop' | 'error'), spikes `unitPrefix`, trials `choiceLabels` and
- * `nOptions` are optional. `notes` (text) is allowed anywhere an entry is. Site and channel
+ * `nOptions` are optional. An events file logged on another device's clock says so with
+ * `clock`: `{ "syncEvent": "sync", "reference": { "events": "sync_in" } }` (the session clock's
+ * copy of the pulses as events) or `"reference": { "line": "ttl", "threshold": 2.5 }` (a
+ * continuous channel carrying them), plus `"barcodes": { "bitSec": 0.01, "nBits": 16 }` when the
+ * pulses are barcodes (device codes = the sync events' values). A line reference must name a
+ * continuous channel of the manifest. `notes` (text) is allowed anywhere an entry is. Site and channel
  * names must be unique; at most one trials file.
  *
  * Hand-written checks (no schema library): every error names the JSON path of the field, e.g.
@@ -240,6 +290,7 @@ export function validateManifest(value: unknown, options: ValidateManifestOption
           ...base, kind,
           columns: { time: columns.time!, name: columns.name!, value: columns.value! },
           duplicates: f.duplicates === undefined ? 'keep' : c.oneOf(f.duplicates, join(at, 'duplicates'), ['keep', 'drop', 'error'] as const),
+          clock: f.clock === undefined || f.clock === null ? null : clockSpec(c, f.clock, join(at, 'clock')),
         };
       case 'spikes': {
         if (f.unitPrefix !== undefined && typeof f.unitPrefix !== 'string') c.fail(join(at, 'unitPrefix'), `must be text, got ${formatValue(f.unitPrefix)}.`);
@@ -263,6 +314,12 @@ export function validateManifest(value: unknown, options: ValidateManifestOption
       }
     }
   });
+  for (const f of files) {
+    if (f.kind !== 'events' || f.clock === null || !('line' in f.clock.reference)) continue;
+    const line = f.clock.reference.line;
+    const isChannel = files.some((g) => g.kind === 'continuous' && g.channels.some((ch) => ch.name === line));
+    if (!isChannel) c.fail(`${f.at}.clock.reference.line`, `names '${line}', which is not a continuous channel of this manifest; list the sync line under a continuous file's channels.`);
+  }
   return {
     schemaVersion: MANIFEST_SCHEMA_VERSION,
     session,

@@ -1,7 +1,7 @@
 import type { Provenance, ResultWarning, Session, UniformSignal } from '@tuningfork/core';
 import { sessionReport } from '@tuningfork/report';
 import type {
-  KernelInput, QcInput, RasterInput, ResponseInput, SessionReportInput, TrialHeatmapInput, TuningInput,
+  KernelInput, QcInput, RasterInput, ReportTable, ResponseInput, SessionReportInput, TrialHeatmapInput, TuningInput,
 } from '@tuningfork/report';
 import type { SessionAnalysis } from '../analyze-session.js';
 import type { ColumnTable, SessionOutputs } from '../pipeline-types.js';
@@ -69,6 +69,8 @@ export function buildOutputs(session: Session, r: Partial, o: OutputOptions): Se
       flags: r.sites.map((s) => [...s.conditioned.flags, ...(s.quality?.flags ?? [])].join(';')),
     });
   }
+
+  if (r.clocks.length > 0) tables.clock_sync = makeTable(clockSyncColumns(r));
 
   tables.movement_onsets = makeTable({ time: r.movement.onsets, vigour: r.movement.vigour, source: Array.from(r.movement.onsets, () => r.movement.source) });
 
@@ -230,7 +232,7 @@ function reportInput(session: Session, r: Partial, o: OutputOptions): SessionRep
   return {
     session: session.id, qc, responses: [...byCellEvent.values()], heatmaps, rasters, kernels,
     ...(tuning ? { tuning } : {}),
-    tables: [{
+    tables: [...(r.clocks.length > 0 ? [clockReportTable(r)] : []), {
       caption: 'Peri-event bands: what each assumes',
       columns: [{ key: 'what', label: 'bands' }, { key: 'assumptions', label: 'assumptions' }],
       rows: [{ what: 'all peri-event bands', assumptions: o.assumptions }],
@@ -246,4 +248,41 @@ function relativeSpikes(spikes: Float64Array, t: number, from: number, to: numbe
   let end = lo;
   while (end < spikes.length && spikes[end]! <= t + to) end++;
   return Float64Array.from(spikes.subarray(lo, end), (s) => s - t);
+}
+
+/** One row per clock piece of every device whose events were mapped onto the session clock. */
+function clockSyncColumns(r: Partial): Record<string, Col> {
+  const rows = r.clocks.flatMap((c) => c.map.pieces.map((p, k) => ({ c, p, k })));
+  const num = (f: (x: (typeof rows)[number]) => number) => Float64Array.from(rows, f);
+  return {
+    source: rows.map((x) => x.c.source),
+    piece: num((x) => x.k),
+    offset_s: num((x) => x.p.offsetSec),
+    slope: num((x) => x.p.slope),
+    drift_ppm: num((x) => x.p.driftPpm),
+    device_start_s: num((x) => x.p.deviceStart),
+    device_end_s: num((x) => x.p.deviceEnd),
+    pairs: num((x) => x.p.nPairs),
+    rms_residual_ms: num((x) => x.p.rmsResidualSec * 1e3),
+    max_residual_ms: num((x) => x.p.maxResidualSec * 1e3),
+    unmatched_reference: num((x) => x.c.map.unmatchedReference.length),
+    unmatched_device: num((x) => x.c.map.unmatchedDevice.length),
+    events_mapped: num((x) => x.c.mapped),
+    events_outside: num((x) => x.c.outside),
+  };
+}
+
+/** The report's view of the same rows. */
+function clockReportTable(r: Partial): ReportTable {
+  return {
+    caption: 'Other devices on the session clock: one row per clock piece (drift, residuals of the sync pulses, events mapped)',
+    columns: [
+      { key: 'source', label: 'events from' }, { key: 'piece', label: 'piece' }, { key: 'drift', label: 'drift (ppm)', decimals: 2 },
+      { key: 'pairs', label: 'sync pairs' }, { key: 'rms', label: 'RMS residual (ms)', decimals: 3 }, { key: 'max', label: 'max residual (ms)', decimals: 3 },
+      { key: 'mapped', label: 'events mapped' }, { key: 'outside', label: 'left out (outside sync)' },
+    ],
+    rows: r.clocks.flatMap((c) => c.map.pieces.map((p, k) => ({
+      source: c.source, piece: k, drift: p.driftPpm, pairs: p.nPairs, rms: p.rmsResidualSec * 1e3, max: p.maxResidualSec * 1e3, mapped: c.mapped, outside: c.outside,
+    }))),
+  };
 }
