@@ -74,6 +74,16 @@ describe('intervalFromReplicates', () => {
     const p = intervalFromReplicates([1, 2, 3, 4, 5], { method: 'percentile' });
     expectAllClose([r.low, r.high], [p.low, p.high], { rtol: 1e-15 });
   });
+  it('intervalFromReplicates(reps, { method: \'bca\', jackknife }) rejects a NaN or ±∞ jackknife value with its index', () => {
+    // Before: the NaN made Σd² NaN, a became 0 and a BC interval (a number) came back under a
+    // 'degenerate-bca' warning that said the interval was NaN.
+    for (const [bad, index] of [[NaN, 2], [Infinity, 0], [-Infinity, 3]] as const) {
+      const jack = [1, 2, 3, 4];
+      jack[index] = bad;
+      expect(() => intervalFromReplicates([1, 2, 3, 4, 5], { method: 'bca', estimate: 3, jackknife: jack }))
+        .toThrow(expect.objectContaining({ code: 'TF_NON_FINITE', details: expect.objectContaining({ option: 'jackknife', index }) }));
+    }
+  });
   it('flags 1 − a(z0 + z) ≤ 0 (bca-level-unstable) instead of returning a wrong bound', () => {
     const r = intervalFromReplicates([1, 2, 3, 4, 5, 6], { method: 'bca', estimate: 3.5, acceleration: 0.9 });
     expect(r.high).toBeNaN();

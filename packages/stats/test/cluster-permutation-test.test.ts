@@ -6,6 +6,8 @@ import { matrixOf } from './helpers.js';
 
 // Reference: exhaustive cluster-mass nulls written in numpy/scipy; see fixtures/scipy/gen_cluster.py.
 const fx = loadFixture('fixtures/scipy/cluster.json', import.meta.dirname);
+// Reference: scipy 1.17 binomtest (sign test); see fixtures/scipy/gen_degenerate_permutation.py.
+const dg = loadFixture('fixtures/scipy/degenerate_permutation.json', import.meta.dirname);
 
 describe('clusterPermutationTest', () => {
   it('INFERENCE.md §2.5 fixture: one cluster (samples 4–8) of mass 24.2564039996, exhaustive p = 2/64', () => {
@@ -57,6 +59,15 @@ describe('clusterPermutationTest', () => {
     expectAllClose([main.startSec, main.endSec], [offsets[main.start]!, offsets[main.end]!], { rtol: 0 });
     const again = clusterPermutationTest(A, { data: b, rows: n, cols: T }, { permutations: 499, seed: 3 });
     expect(Array.from(again.nullDistribution)).toEqual(Array.from(r.nullDistribution));
+  });
+  it('a cluster of bins whose trials all hold one non-zero value (t = +∞, mass +∞) gets the sign-test p, not 0', () => {
+    // 5 trials × 4 bins; bins 1–2 are 5 in every trial. Only the identity and the full flip give an
+    // infinite cluster mass, so the exhaustive p is 2/32 (sign test, scipy binomtest), exact.
+    const d = matrixOf([[0.3, 5, 5, -0.2], [-0.1, 5, 5, 0.4], [0.2, 5, 5, 0.1], [0.5, 5, 5, -0.3], [-0.4, 5, 5, 0.2]]);
+    const r = clusterPermutationTest(d);
+    expect(r.exact).toBe(true);
+    expect(r.clusters.map((c) => [c.start, c.end, c.sign, c.mass])).toEqual([[1, 2, 1, Infinity]]);
+    expectAllClose(r.clusters[0]!.pValue, dg.signFlip.twoSided as number, { rtol: 1e-15, atol: 0, source: dg.source });
   });
   it('one-sided alternatives keep only clusters of that sign; an explicit threshold overrides clusterAlpha', () => {
     const f = fx.twoSigns;

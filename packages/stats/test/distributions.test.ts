@@ -56,6 +56,20 @@ describe('studentTQuantile', () => {
     // NIST/SEMATECH e-Handbook, upper critical values of Student's t: df 1: 63.657; df 10: 3.169 (3 decimals).
     expectAllClose([studentTQuantile(0.995, 1), studentTQuantile(0.995, 10)], [63.657, 3.169], { atol: 5e-4, rtol: 0 });
   });
+  it('studentTQuantile(p, df) matches mpmath in the far lower tail (p 1e−30 to 1e−300, df 1.05–100, |t| up to 1e285)', () => {
+    // Before: from a start far below the root, Newton crept by ≈ (1 + 1/ν) per step and stopped after
+    // 200 iterations (df 3, p 1e−100: −5.9e30 instead of −2.2e33), and t² overflowed above 1.3e154.
+    const cases = fx.tPpfFarTail.cases as { df: number; p: number; quantile: number }[];
+    // Same ~1e-13 accuracy as in the body; 1e-12 is the documented bound (the mpmath roots are 50-digit).
+    expectAllClose(cases.map((c) => studentTQuantile(c.p, c.df)), cases.map((c) => c.quantile), { rtol: 1e-12, source: fx.source });
+    expect(studentTQuantile(1e-300, 0.3)).toBe(-Infinity); // |t| ≈ 1e1000 > 1e300 (documented)
+  });
+  it('studentTCdf(t, df) keeps its relative accuracy for |t| > 1.3e154 (t² overflows)', () => {
+    const cases = fx.tCdfFarTail.cases as { df: number; t: number; cdf: number }[];
+    // First term of the incomplete-beta series in logs, exact but for rounding; exp of an argument
+    // near −550 turns its ≈ 550·ε absolute rounding into ≈ 1.2e-13 relative, so 5e-13 here.
+    expectAllClose(cases.map((c) => studentTCdf(c.t, c.df)), cases.map((c) => c.cdf), { rtol: 5e-13, source: fx.source });
+  });
   it('is −∞, 0, +∞ at p = 0, ½, 1 and rejects df ≤ 0 or p outside [0, 1] with TF_BAD_OPTION', () => {
     expect(studentTQuantile(0, 4)).toBe(-Infinity);
     expect(studentTQuantile(0.5, 4)).toBe(0);

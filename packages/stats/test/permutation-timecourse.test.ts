@@ -5,6 +5,8 @@ import { matrixOf } from './helpers.js';
 
 // Reference: scipy 1.17 stats.permutation_test with n_resamples=np.inf (exact); see fixtures/scipy/gen_permutation.py.
 const fx = loadFixture('fixtures/scipy/permutation.json', import.meta.dirname);
+// Reference: scipy 1.17 binomtest (sign test) and fisher_exact; see fixtures/scipy/gen_degenerate_permutation.py.
+const dg = loadFixture('fixtures/scipy/degenerate_permutation.json', import.meta.dirname);
 
 describe('permutationTimecourse', () => {
   it('exact sign flip of x = [1.2, 0.8, 2.1, −0.3, 1.5]: one-sided p 0.0625, two-sided 0.125 (INFERENCE.md §2.5; scipy)', () => {
@@ -49,6 +51,48 @@ describe('permutationTimecourse', () => {
     expect(r.pValue[1]!).toBeGreaterThan(0.05);
     const again = permutationTimecourse({ data, rows: n, cols: 2 }, null, { permutations: 999, seed: 2 });
     expect(Array.from(again.pValue)).toEqual(Array.from(r.pValue));
+  });
+  it('permutationTimecourse(a) of bins whose trials all hold one non-zero value gives the sign-test p, never 0 or NaN', () => {
+    // 5 trials; every column constant. Rounding makes the spread of such columns exactly 0, a tiny
+    // positive or a tiny negative number depending on the value, so each value below takes one path
+    // (t = ±∞, t ≈ 1e8, variance < 0): 5, 2.3, 0.1, −0.7.
+    const values = [5, 2.3, 0.1, -0.7];
+    const n = dg.signFlip.n as number;
+    const m = { data: Float64Array.from({ length: n * values.length }, (_, k) => values[k % values.length]!), rows: n, cols: values.length };
+    const two = permutationTimecourse(m, null, { alternative: 'two-sided' });
+    const g = permutationTimecourse(m, null, { alternative: 'greater' });
+    const l = permutationTimecourse(m, null, { alternative: 'less' });
+    expect(two.exact).toBe(true);
+    // Exact enumeration of 2⁵ sign vectors: only the identity and the full flip have zero spread, so the
+    // p-values are k/32 exactly (sign test, scipy binomtest): compared to 1e-15 relative.
+    const tol = { rtol: 1e-15, atol: 0, source: dg.source };
+    expectAllClose(two.pValue, values.map(() => dg.signFlip.twoSided as number), tol);
+    expectAllClose(g.pValue, values.map((v) => (v > 0 ? dg.signFlip.greater : dg.signFlip.less) as number), tol);
+    expectAllClose(l.pValue, values.map((v) => (v > 0 ? dg.signFlip.less : dg.signFlip.greater) as number), tol);
+    expect(Array.from(two.t)).toEqual(values.map((v) => (v > 0 ? Infinity : -Infinity))); // mean / 0
+    expect(two.warnings).toEqual([]);
+    // Paired: a − b is the same 0.3 in every trial (in floating point, not exactly).
+    const b = matrixOf([[1.2], [3.4], [0.5], [2.2], [7.1]]);
+    const a = matrixOf([[1.5], [3.7], [0.8], [2.5], [7.4]]);
+    expectAllClose(permutationTimecourse(a, b, { design: 'paired' }).pValue, [dg.signFlip.twoSided as number], tol);
+  });
+  it('permutationTimecourse(a, b) of groups that each hold one repeated value gives Fisher\'s exact p, never 0 or NaN', () => {
+    // [1, 1, 1] vs [0, 0, 0] (t = +∞ before rounding) and [0.2 ×3] vs [0.6 ×3] (rounding gave NaN).
+    const a = matrixOf([[1, 0.2], [1, 0.2], [1, 0.2]]);
+    const b = matrixOf([[0, 0.6], [0, 0.6], [0, 0.6]]);
+    const two = permutationTimecourse(a, b, { design: 'independent' });
+    const g = permutationTimecourse(a, b, { design: 'independent', alternative: 'greater' });
+    expect(two.permutations).toBe(20); // C(6, 3)
+    // k/20 exactly; Fisher's exact test of the 2 × 2 table (scipy fisher_exact).
+    const tol = { rtol: 1e-15, atol: 0, source: dg.source };
+    expectAllClose(two.pValue, [dg.independent.twoSided as number, dg.independent.twoSided as number], tol);
+    expectAllClose(g.pValue[0]!, dg.independent.greater as number, tol);
+    expect(Array.from(two.t)).toEqual([Infinity, -Infinity]);
+    expect(two.warnings).toEqual([]);
+    // A bin constant over both groups still has an undefined t.
+    const flat = permutationTimecourse(matrixOf([[0.7], [0.7], [0.7]]), matrixOf([[0.7], [0.7], [0.7], [0.7]]));
+    expect(flat.pValue[0]).toBeNaN();
+    expect(flat.warnings.map((w) => w.code)).toEqual(['zero-variance-columns']);
   });
   it('marks non-finite bins NaN with a warning and rejects mismatched paired rows', () => {
     const m = { data: Float64Array.from([1, NaN, 2, 3, 0.5, 1, 2, 2]), rows: 4, cols: 2 };

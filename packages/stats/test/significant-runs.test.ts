@@ -56,4 +56,16 @@ describe('significantRunsFromPValues', () => {
     expect(significantRunsFromPValues(p, { alpha: 0.015, minRunSec: 1, sampleRate: 1 }).runs.map((x) => x.start)).toEqual([1, 3, 6]);
     expect(() => significantRunsFromPValues(p, { effect: [1], minRunSec: 1, sampleRate: 1 })).toThrow(expect.objectContaining({ code: 'TF_SHAPE_MISMATCH' }));
   });
+  it('significantRunsFromPValues(p) rejects a p-value outside [0, 1] (e.g. t values passed by mistake) with its index', () => {
+    // Before: p = −2.1 counted as p < alpha, so negative t values became a "significant" run.
+    const t = [0.4, -2.1, -3.5, -2.8, 1.2];
+    expect(() => significantRunsFromPValues(t, { minRunSec: 2, sampleRate: 1 }))
+      .toThrow(expect.objectContaining({ code: 'TF_BAD_VALUE', details: expect.objectContaining({ index: 1 }) }));
+    expect(() => significantRunsFromPValues([0.01, 1.5], { minRunSec: 1, sampleRate: 1 }))
+      .toThrow(expect.objectContaining({ code: 'TF_BAD_VALUE', details: expect.objectContaining({ index: 1 }) }));
+    expect(() => significantRunsFromPValues([0.01, Infinity], { minRunSec: 1, sampleRate: 1 }))
+      .toThrow(expect.objectContaining({ code: 'TF_BAD_VALUE', details: expect.objectContaining({ index: 1 }) }));
+    // 0, 1 and NaN (a missing test) stay valid; NaN breaks runs.
+    expect(significantRunsFromPValues([0, 0, NaN, 0, 1], { minRunSec: 1, sampleRate: 1 }).runs.map((x) => [x.start, x.end])).toEqual([[0, 1], [3, 3]]);
+  });
 });

@@ -174,7 +174,8 @@ const REPLICATE_DEFAULTS = Object.freeze({
  * Non-finite replicates are dropped and reported. The input is not modified.
  *
  * @throws {TuningforkError} TF_BAD_OPTION when BCa lacks a finite `estimate` or both/neither of
- *   `jackknife` and `acceleration`; TF_TOO_FEW_SAMPLES when `jackknife` has < 2 values.
+ *   `jackknife` and `acceleration`; TF_TOO_FEW_SAMPLES when `jackknife` has < 2 values;
+ *   TF_NON_FINITE when a `jackknife` value is NaN or ±∞ (index given).
  */
 export function intervalFromReplicates(
   replicates: ArrayLike<number>, options: IntervalFromReplicatesOptions = {},
@@ -197,6 +198,12 @@ export function intervalFromReplicates(
     if (o.jackknife !== undefined) {
       const j = toFloat64(o.jackknife);
       if (j.length < 2) throw new TuningforkError('TF_TOO_FEW_SAMPLES', `${fn}: jackknife has ${j.length} value(s); at least 2 are needed.`, { fn });
+      for (let i = 0; i < j.length; i++) {
+        const v = j[i]!;
+        if (!(v - v === 0)) {
+          throw new TuningforkError('TF_NON_FINITE', `${fn}: jackknife value ${i} (the statistic without observation ${i}) is ${v}; the BCa acceleration needs finite leave-one-out values. Recompute it, or give acceleration directly.`, { fn, option: 'jackknife', index: i, value: v });
+        }
+      }
       const acc = new Float64Array(2);
       accumulateJackknife(j, j.length, acc);
       const ar = accelerationFrom(acc[0]!, acc[1]!);

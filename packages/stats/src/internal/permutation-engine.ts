@@ -8,6 +8,10 @@
  * plan lists every sign vector (2ⁿ) or every labelling (C(n1 + n2, n1)), identity first;
  * otherwise rows 1..N are random. Each labelling is a 0/1 subset of rows, so the sums are table
  * lookups of the shared kernel (count-plan.ts).
+ *
+ * Zero spread: a labelling whose values (one-sample, paired) or whose groups (independent) have
+ * no spread up to rounding gets t = ±∞ (mean or mean difference ≠ 0); such labellings tie with
+ * each other (`tieTolerance`). A pooled column holding one value only has t = NaN throughout.
  */
 import { TuningforkError } from '@tuningfork/core';
 import type { Matrix, Rng } from '@tuningfork/core';
@@ -61,6 +65,17 @@ export function buildEngine(design: Design, a: Matrix, b: Matrix | null, permuta
   const bad = new Uint8Array(cols);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < cols; j++) { const v = y[i * cols + j]!; if (!(v - v === 0)) bad[j] = 1; }
+  }
+  // Pooled columns holding one value only: t is 0/0 for every labelling (the centred values need
+  // not be exactly equal, so this is decided on the raw values).
+  const flat = new Uint8Array(cols);
+  if (design === 'independent') {
+    for (let j = 0; j < cols; j++) {
+      const v0 = y[j]!;
+      let same = 1;
+      for (let i = 1; i < n && same; i++) if (y[i * cols + j] !== v0) same = 0;
+      flat[j] = same;
+    }
   }
   // Centre pooled columns (independent) so that sums of squares keep their accuracy.
   let y2: Float64Array | null = null;
@@ -144,26 +159,30 @@ export function buildEngine(design: Design, a: Matrix, b: Matrix | null, permuta
         for (let jj = 0; jj < width; jj++) {
           const j = c0 + jj;
           const base = jj * rows;
-          if (bad[j]) { t.fill(NaN, base, base + rows); continue; }
+          if (bad[j] || flat[j]) { t.fill(NaN, base, base + rows); continue; }
           if (design === 'independent') {
             const st = sum[j]!;
             const qt = sumSq[j]!;
+            const floor = zeroSpreadFloor(n, qt);
             for (let r = 0; r < rows; r++) {
               const sa = s[base + r]!;
               const qa = q![base + r]!;
               const sb = st - sa;
               const ssa = qa - (sa * sa) / n1;
               const ssb = qt - qa - (sb * sb) / n2;
-              const sp2 = (ssa + ssb) / (n - 2);
+              const ssw = ssa + ssb;
+              const sp2 = (ssw <= floor ? 0 : ssw) / (n - 2);
               t[base + r] = (sa / n1 - sb / n2) / Math.sqrt(sp2 * (1 / n1 + 1 / n2));
             }
           } else {
             // Σ sᵢyᵢ = 2·Σ_{kept} y − Σ_all y, with Σ_all y from the identity row (same arithmetic).
             const total = s[base]!;
             const qj = sumSq[j]!;
+            const floor = zeroSpreadFloor(n, qj);
             for (let r = 0; r < rows; r++) {
               const m = (2 * s[base + r]! - total) / n;
-              const v = (qj - n * m * m) / (n - 1);
+              const ss = qj - n * m * m;
+              const v = (ss <= floor ? 0 : ss) / (n - 1);
               t[base + r] = m / Math.sqrt(v / n);
             }
           }
@@ -188,6 +207,25 @@ function nextCombination(idx: Int32Array, n: number): boolean {
 /** Relative tolerance for "null ≥ observed", so equal statistics reached by different
  * summation orders count as ties (scipy uses 100·eps; table sums need a little more). */
 export const TIE_TOLERANCE = 1e-10;
+
+/**
+ * Absolute tie tolerance for an observed statistic x: TIE_TOLERANCE·|x|, and 0 for x = ±∞ (where
+ * the relative rule would give ∞ − ∞ = NaN and no labelling, not even the observed one, would tie).
+ */
+export function tieTolerance(x: number): number {
+  return x - x === 0 ? TIE_TOLERANCE * Math.abs(x) : 0;
+}
+
+/**
+ * Sums of squared deviations at or below this are rounding noise of a zero spread: Σy² − n·ȳ²
+ * (or the pooled within-group sum) of n values whose squares sum to `sumSq` carries a rounding
+ * error of order n·ε·sumSq (Higham, N. J. (2002). Accuracy and Stability of Numerical Algorithms,
+ * 2nd ed., SIAM, §4.2), so a labelling whose values are all equal gives
+ * exactly 0 (t = ±∞ for a non-zero mean difference) instead of a rounding-dependent huge t or NaN.
+ */
+function zeroSpreadFloor(n: number, sumSq: number): number {
+  return 2 * n * Number.EPSILON * sumSq;
+}
 
 export function checkDesign(fn: string, design: Design, a: Matrix, b: Matrix | null): void {
   if (design === 'paired' && a.rows !== b!.rows) {

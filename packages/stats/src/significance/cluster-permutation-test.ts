@@ -1,7 +1,7 @@
 import { checkPositive, TuningforkError } from '@tuningfork/core';
 import type { Matrix, ResultWarning } from '@tuningfork/core';
 import { studentTQuantile } from '../distributions/student-t.js';
-import { TIE_TOLERANCE } from '../internal/permutation-engine.js';
+import { tieTolerance } from '../internal/permutation-engine.js';
 import type { Design } from '../internal/permutation-engine.js';
 import { setupPermutation, undefinedTWarning } from './permutation-timecourse.js';
 import type { Alternative, PermutationTimecourseOptions } from './permutation-timecourse.js';
@@ -60,7 +60,9 @@ export interface ClusterPermutationResult {
  * (5) each observed cluster's p is the share of null maxima ≥ its |mass| — exact share with
  * enumeration, (1 + b)/(1 + N) otherwise. A significant cluster says the conditions differ; its
  * extent and onset are descriptive, not estimates of when an effect starts. Non-finite bins
- * break clusters and are reported.
+ * break clusters and are reported. Bins with zero spread and a non-zero mean (difference) have
+ * t = ±∞ (see `permutationTimecourse`); a cluster holding one has mass ±∞, which ties with the
+ * infinite null maxima (the identity and the full flip), so its p is never 0.
  *
  * @param a - Trials × bins.
  * @param b - Second condition (same bins) or null for a one-sample test against 0.
@@ -135,7 +137,7 @@ export function clusterPermutationTest(a: Matrix, b: Matrix | null = null, optio
       j++;
     }
     const stat = Math.abs(mass);
-    const tol = TIE_TOLERANCE * stat;
+    const tol = tieTolerance(stat);
     let count = 0;
     for (let r = nullStart; r < R; r++) if (best[r]! >= stat - tol) count++;
     const pValue = engine.exact ? count / R : (count + 1) / R;

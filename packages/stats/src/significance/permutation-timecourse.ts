@@ -1,6 +1,6 @@
 import { checkOneOf, resolveOptions, rng } from '@tuningfork/core';
 import type { Matrix, ResultWarning } from '@tuningfork/core';
-import { buildEngine, checkDesign, TIE_TOLERANCE } from '../internal/permutation-engine.js';
+import { buildEngine, checkDesign, tieTolerance } from '../internal/permutation-engine.js';
 import type { Design } from '../internal/permutation-engine.js';
 import { checkMatrix, checkResamples, checkSameCols, checkSeed, describeColumn, firstIndices, matrixOffsets, warn } from '../internal/validate.js';
 
@@ -19,7 +19,12 @@ export interface PermutationTimecourseOptions {
 
 /** Per-time-bin permutation test result. */
 export interface PermutationTimecourseResult {
-  /** Observed t per bin (one-sample / paired: mean/(sd/√n); independent: pooled-variance t). */
+  /**
+   * Observed t per bin (one-sample / paired: mean/(sd/√n); independent: pooled-variance t).
+   * ±∞ where the values (or each group) have zero spread but a non-zero mean (difference), e.g.
+   * every trial holds 1 spike; NaN where every value is 0 (one-sample / paired) or the pooled
+   * bin holds one value only ('zero-variance-columns' warning).
+   */
   readonly t: Float64Array;
   /** Permutation p-value per bin (NaN where the bin holds a non-finite cell). */
   readonly pValue: Float64Array;
@@ -52,7 +57,9 @@ const DEFAULTS = Object.freeze({
  * are enumerated and p = #{t* at least as extreme}/#labellings (exact); otherwise
  * p = (1 + b)/(1 + N) over N random labellings (Phipson & Smyth 2010), never 0. Two-sided uses
  * |t*| ≥ |t| (equal to 2·min one-sided p for the symmetric sign-flip null). Ties use a relative
- * tolerance of 1e−10. Feed the p-values to `significantRunsFromPValues` for the
+ * tolerance of 1e−10. A labelling with zero spread (up to rounding) has t = ±∞, and infinite t
+ * values tie with each other: a bin whose n trials all hold the same non-zero value gets the
+ * sign-test p = 2·2⁻ⁿ two-sided, the same for every such value. Feed the p-values to `significantRunsFromPValues` for the
  * consecutive-threshold rule, or to `adjustPValues`.
  *
  * @param a - Trials × bins (a core Matrix or PeriEventMatrix).
@@ -81,7 +88,7 @@ export function permutationTimecourse(a: Matrix, b: Matrix | null = null, option
       const obs = t[base]!;
       tObs[j] = obs;
       if (!(obs === obs)) { pValue[j] = NaN; continue; }
-      const tol = TIE_TOLERANCE * Math.abs(obs);
+      const tol = tieTolerance(obs);
       let count = 0;
       const start = engine.exact ? 0 : 1;
       for (let r = start; r < R; r++) {
@@ -97,14 +104,14 @@ export function permutationTimecourse(a: Matrix, b: Matrix | null = null, option
   };
 }
 
-/** Warning for finite bins whose observed t is undefined (zero variance: all values equal). */
+/** Warning for finite bins whose observed t is undefined (all values 0, or the pooled bin holds one value). */
 export function undefinedTWarning(fn: string, t: Float64Array, bad: Uint8Array, offsets: Float64Array | undefined): ResultWarning[] {
   const isUndef = (j: number) => bad[j] === 0 && !(t[j] === t[j]);
   let k = 0;
   for (let j = 0; j < t.length; j++) if (isUndef(j)) k++;
   if (k === 0) return [];
   const idx = firstIndices(t.length, isUndef);
-  return [warn('zero-variance-columns', `${fn}: ${k} bin(s) have zero variance, so t is undefined (NaN) there (first: ${idx.map((j) => describeColumn(j, offsets)).join(', ')}); their p is NaN and they never join a cluster.`, { columns: k, first: idx })];
+  return [warn('zero-variance-columns', `${fn}: ${k} bin(s) have zero variance and no mean (difference) to test, so t is undefined (NaN) there (first: ${idx.map((j) => describeColumn(j, offsets)).join(', ')}); their p is NaN and they never join a cluster.`, { columns: k, first: idx })];
 }
 
 /** Shared validation and engine construction of the permutation functions. */

@@ -153,8 +153,10 @@ export interface PValueRunOptions extends ConsecutiveRunOptions {
  * Significant runs of per-sample p-values (e.g. from `permutationTimecourse`): bins with
  * p < alpha, signed by `effect`, kept when at least `minRunSec` long. NaN p breaks runs.
  *
- * @throws {TuningforkError} TF_SHAPE_MISMATCH when effect and p differ in length; TF_BAD_OPTION
- *   for alpha outside [0, 1]; otherwise as `consecutiveThresholdRuns`.
+ * @param p - Per-bin p-values in [0, 1]; NaN (a missing test) is never significant.
+ * @throws {TuningforkError} TF_BAD_VALUE when a p-value is outside [0, 1] or ±∞ (index given);
+ *   TF_SHAPE_MISMATCH when effect and p differ in length; TF_BAD_OPTION for alpha outside [0, 1];
+ *   otherwise as `consecutiveThresholdRuns`.
  *
  * References
  * - Jean-Richard-dit-Bressel, P., Clifford, C. W. G. & McNally, G. P. (2020). Frontiers in Molecular
@@ -167,6 +169,12 @@ export function significantRunsFromPValues(p: ArrayLike<number>, options: PValue
   const pv = toFloat64(p);
   if (effect !== undefined && effect.length !== pv.length) {
     throw new TuningforkError('TF_SHAPE_MISMATCH', `${fn}: effect has ${effect.length} values but p has ${pv.length}.`, { fn });
+  }
+  for (let i = 0; i < pv.length; i++) {
+    const v = pv[i]!;
+    if (v === v && !(v >= 0 && v <= 1)) {
+      throw new TuningforkError('TF_BAD_VALUE', `${fn}: p-values must lie in [0, 1] (or be NaN for a missing test); index ${i} is ${v}. Pass the p-values (e.g. permutationTimecourse(...).pValue), not the t values.`, { fn, index: i, value: v });
+    }
   }
   const c = new Int8Array(pv.length);
   for (let i = 0; i < pv.length; i++) {
