@@ -16,6 +16,7 @@ import { choiceLogLikelihood, fitChoiceModel } from '@tuningfork/learning';
 import { designMatrix, fitPoissonGLM, fitRidgeCV, raisedCosineBasis } from '@tuningfork/encode';
 import { periEventFigure, sessionReport } from '@tuningfork/report';
 import { simulateSession } from '@tuningfork/simulate';
+import { syncDeviceEvents } from 'tuningfork';
 
 export interface BadInput {
   readonly id: string;
@@ -65,6 +66,8 @@ export const CATALOGUE: readonly BadInput[] = [
   { id: 'events-ms-as-seconds', area: 'events', what: 'events in ms declared as seconds fall outside the recording', run: () => periEventMatrix(sig(noise(1000)), Float64Array.of(1500, 2500), { preSec: 1, postSec: 1 }), expect: { warning: 'events-excluded', check: (r) => { if (r.rows !== 0) throw new Error('events beyond the recording must not give rows'); } } },
   // ---- manifest ----
   { id: 'manifest-not-object', area: 'manifest', what: 'a manifest that is a JSON array', run: () => validateManifest([]), expect: { code: 'TF_BAD_MANIFEST' } },
+  { id: 'manifest-clock-unknown-line', area: 'manifest', what: 'a device clock whose sync line is not a continuous channel', run: () => validateManifest({ ...validManifest(), files: [{ kind: 'events', path: 'box.csv', clock: { syncEvent: 'sync', reference: { line: 'ttl' } } }] }), expect: { code: 'TF_BAD_MANIFEST' } },
+  { id: 'device-events-no-sync', area: 'events', what: "device events without their sync events (clock.syncEvent misspelled)", run: () => syncDeviceEvents({ id: 's', start: 0, end: 10, photometry: [], units: [], continuous: {}, events: makeEventTable([1, 2], ['sync_in', 'sync_in']), deviceEvents: [{ source: 'box.csv', events: makeEventTable([1.1, 2.1, 3], ['sync', 'sync', 'cue']), clock: { syncEvent: 'sync_out', reference: { events: 'sync_in' }, barcodes: null } }] }), expect: { code: 'TF_SYNC_FAILED' } },
   { id: 'manifest-misspelled-key', area: 'manifest', what: "a misspelled key ('sesion')", run: () => validateManifest({ ...validManifest(), sesion: 'x' }), expect: { code: 'TF_BAD_MANIFEST' } },
   { id: 'manifest-wrong-version', area: 'manifest', what: 'an unknown schema version', run: () => validateManifest({ ...validManifest(), schemaVersion: 99 }), expect: { code: 'TF_BAD_MANIFEST' } },
   { id: 'manifest-bad-kind', area: 'manifest', what: "a file of unknown kind ('video')", run: () => validateManifest({ ...validManifest(), files: [{ kind: 'video', path: 'a.mp4' }] }), expect: { code: 'TF_BAD_MANIFEST' } },
