@@ -6,6 +6,7 @@ import { main as correct } from '../examples/correct-photometry.js';
 import { main as peth } from '../examples/peth-with-band.js';
 import { main as learning } from '../examples/fit-learning-model.js';
 import { main as classify } from '../examples/classify-units.js';
+import { main as sync } from '../examples/sync-behaviour-box.js';
 
 // Every example runs here on small simulated data, so none of them rots.
 const out = mkdtempSync(join(tmpdir(), 'tuningfork-examples-'));
@@ -25,6 +26,11 @@ describe('examples', () => {
     const r = await learning(out, 900);
     expect(Object.keys(r.params)).toEqual(['alpha', 'beta', 'alphaC', 'betaC']);
     expect(readFileSync(r.file, 'utf8').split('\n')[0]).toBe('trial,choice,reward,rpe,ape,q_chosen,p_choice');
+  });
+  it('sync-behaviour-box maps the box rewards onto the session clock within 0.5 ms of the simulated truth', () => {
+    const r = sync(300);
+    expect(r.rewards).toBeGreaterThan(10);
+    expect(r.worstMs).toBeLessThanOrEqual(0.5);
   });
   it('classify-units returns one class per unit', async () => {
     const rows = await classify(600, 3);
