@@ -83,6 +83,24 @@ describe('conditionSite', () => {
     expect(r.motionCorrected).toBe(false);
   });
 
+  it('gives a constant (dead) sensor channel a NaN z-score with a flag, not z-scored rounding residue', () => {
+    // Before: ΔF/F ≈ 1e-19 (rounding) divided by its own sd ≈ 1e-15 gave z values up to ≈ 14 with
+    // only 'low-r2'/'slope-nonpositive' flags (default chain), or all-NaN z silently (detrend 'none').
+    const { site } = syntheticSite(30000, 100, 0.0005, 5);
+    const flat = { ...site, signal: { ...site.signal, values: new Float64Array(30000).fill(2) } };
+    for (const options of [{}, { detrend: 'none' as const }, { zScore: 'robust' as const }]) {
+      const r = conditionSite(flat, options);
+      expect(r.flags).toContain('signal-degenerate');
+      expect(r.warnings.map((w) => w.code)).toContain('SIGNAL_DEGENERATE');
+      expect(r.z.signal.values.every((v) => Number.isNaN(v))).toBe(true);
+      expect(r.z.scale).toBeNaN();
+      // ΔF/F of a constant sensor is 0 (closed form); 1e-12 bounds the rounding of the chain.
+      expectAllClose(r.dff.values, new Float64Array(30000), { atol: 1e-12 });
+    }
+    // A live sensor is not flagged.
+    expect(conditionSite(site).flags).not.toContain('signal-degenerate');
+  });
+
   it('rejects unequal channel lengths and NaN runs with codes naming where', () => {
     const { site } = syntheticSite(3000, 100, 0.001, 4);
     expect(() => conditionSite({ ...site, control: { ...site.control, values: site.control.values.subarray(0, 2999) } })).toThrow(expect.objectContaining({ code: 'TF_SHAPE_MISMATCH' }));

@@ -75,6 +75,28 @@ describe('lockInDemodulate', () => {
     expectAllClose(ch.phase.values[15000]!, 0.4, { atol: 1e-4 });
   });
 
+  it('refuses references given in another order than carriersHz, or a constant drive, instead of demodulating at a wrong frequency', () => {
+    // Two sine drives at 217 and 319 Hz, passed swapped. Demodulated at 217 Hz, the 319 Hz drive
+    // leaves only low-pass leakage whose phase is no line; before this check the "refined"
+    // carriers were ≈ 198 and 338 Hz and the amplitudes 0.12 and 0.06 instead of 2 and 0.7.
+    const fs = 10000;
+    const d217 = Float64Array.from(x, (_, i) => Math.sin(2 * Math.PI * 217 * (i / fs) + 0.3));
+    const d319 = Float64Array.from(x, (_, i) => Math.sin(2 * Math.PI * 319 * (i / fs) + 1.1));
+    const u = (v: Float64Array) => ({ values: v, sampleRate: fs, t0: 0 });
+    const trace = u(x);
+    // The drives in the right order still work: analytic carrier 217 Hz and A1(1 s) = 2, to the
+    // 1e-4 the low-pass ripple of the residual 2f terms allows (as in the drive test above).
+    const ok = lockInDemodulate(trace, { carriersHz: [217, 319], references: [u(d217), u(d319)] });
+    expectAllClose(ok.channels[0]!.carrierHz, 217, { atol: 1e-4 });
+    expectAllClose(ok.channels[0]!.amplitude.values[10000]!, 2, { atol: 1e-4 });
+    expect(() => lockInDemodulate(trace, { carriersHz: [217, 319], references: [u(d319), u(d217)] })).toThrow(
+      expect.objectContaining({ code: 'TF_DEGENERATE_SIGNAL', details: expect.objectContaining({ parameter: 'references[0]', index: 0 }) }),
+    );
+    // A flat drive (the LED channel not recorded) and an all-zero one.
+    expect(() => lockInDemodulate(trace, { carriersHz: [217], references: [u(new Float64Array(x.length).fill(1.5))] })).toThrow(expect.objectContaining({ code: 'TF_DEGENERATE_SIGNAL' }));
+    expect(() => lockInDemodulate(trace, { carriersHz: [217], references: [u(new Float64Array(x.length))] })).toThrow(expect.objectContaining({ code: 'TF_DEGENERATE_SIGNAL' }));
+  });
+
   it('rejects carriers at or above Nyquist and NaN samples', () => {
     expect(() => lockInDemodulate({ values: x, sampleRate: 10000, t0: 0 }, { carriersHz: [5000] })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
     const bad = Float64Array.from(x);

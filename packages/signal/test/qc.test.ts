@@ -63,6 +63,19 @@ describe('checkTimestamps', () => {
     expect(r.droppedSamples).toBe(1 + 2 + 1); // round(Δt·fs) − 1 each
     expect(r.irregular).toBe(4);
   });
+
+  it('counts an infinite timestamp as non-finite without an infinite gap or a zero inferred rate', () => {
+    // Before: droppedSamples Infinity (rate given) or NaN with sampleRate 0 (rate inferred).
+    const t = Float64Array.of(0, 0.01, 0.02, Infinity, 0.04, 0.05, 0.06);
+    for (const r of [checkTimestamps(t, { sampleRate: 100 }), checkTimestamps(t)]) {
+      expect(r.nonFinite).toBe(1);
+      expect(r.droppedSamples).toBe(0);
+      expect(r.gaps).toBe(0);
+      expect(r.nonIncreasing).toBe(0);
+      // Median of the four finite 0.01 s intervals (arithmetic); 1e-9 covers their rounding.
+      expectAllClose(r.sampleRate, 100, { rtol: 1e-9 });
+    }
+  });
 });
 
 describe('estimateSnr', () => {
@@ -77,6 +90,20 @@ describe('estimateSnr', () => {
     expectAllClose(r.signalSd, Math.SQRT1_2, { rtol: 0.02 });
     expectAllClose(r.noiseSd, 0.1 * Math.sqrt(0.95), { rtol: 0.03 });
     expectAllClose(r.snr, r.signalSd / r.noiseSd, { rtol: 1e-15 });
+  });
+
+  it('refuses a channel with no measurable noise (constant, zero or a noise-free ramp) instead of dividing rounding residue', () => {
+    // Before: a constant 5 gave snr 0 (noise sd 7.7e-32), all zeros NaN (0/0), a ramp 8.7e13.
+    const fs = 100;
+    const n = 2000;
+    const u = (v: Float64Array) => ({ values: v, sampleRate: fs, t0: 0 });
+    for (const x of [new Float64Array(n).fill(5), new Float64Array(n), Float64Array.from({ length: n }, (_, i) => i)]) {
+      expect(() => estimateSnr(u(x))).toThrow(expect.objectContaining({ code: 'TF_DEGENERATE_SIGNAL' }));
+    }
+    // A 16-bit-like quantised sine with its quantisation noise still has an SNR (common practice:
+    // quantisation noise is noise).
+    const q = Float64Array.from({ length: n }, (_, i) => Math.round(1000 * Math.sin((2 * Math.PI * i) / fs) + 0.4 * Math.sin(i * 1.7)));
+    expect(estimateSnr(u(q)).snr).toBeGreaterThan(0);
   });
 });
 
@@ -106,6 +133,32 @@ describe('siteQuality', () => {
     expect(q.signal.nonFinite).toBe(1);
     expect(q.flags).toContain('non-finite');
     expect(q.snr).toBeNull();
+  });
+
+  it('reports a dead (constant) sensor channel with a warning and no SNR, not NaN', () => {
+    const site = noisySite(20000, 500, 7);
+    const q = siteQuality({ ...site, signal: { ...site.signal, values: new Float64Array(20000).fill(1) } });
+    expect(q.snr).toBeNull();
+    expect(q.warnings.map((w) => w.code)).toContain('SNR_FAILED');
+  });
+
+  it('computes r and the slope at a sampling rate at or below 2·lowPassHz (20 Hz) instead of returning NaN silently', () => {
+    // Time-division systems often deliver 20 Hz per channel, where the default 10 Hz low-pass is
+    // at Nyquist. Signal = 2·control + 1 exactly: r = 1 and slope = 2 (closed form). Before: NaN
+    // and NaN with no warning.
+    const fs = 20;
+    const g = rng(11);
+    const ctl = Float64Array.from({ length: 12000 }, (_, i) => 1 + 0.05 * Math.sin((2 * Math.PI * i) / (fs * 23)) + 0.002 * g.normal());
+    const sig = Float64Array.from(ctl, (c) => 2 * c + 1);
+    const q = siteQuality({ name: 'slow', signal: { values: sig, sampleRate: fs, t0: 0 }, control: { values: ctl, sampleRate: fs, t0: 0 } });
+    // 1e-12: rounding of the centred sums over 12000 samples.
+    expectAllClose(q.controlSignalR, 1, { rtol: 1e-12 });
+    expectAllClose(q.controlSignalSlope, 2, { rtol: 1e-12 });
+    expect(q.warnings.map((w) => w.code)).toContain('LOWPASS_SKIPPED');
+    // Too short for the low-pass: NaN, with a warning saying so.
+    const short = siteQuality({ name: 'short', signal: { values: sig.subarray(0, 10), sampleRate: 100, t0: 0 }, control: { values: ctl.subarray(0, 10), sampleRate: 100, t0: 0 } });
+    expect(short.controlSignalR).toBeNaN();
+    expect(short.warnings.map((w) => w.code)).toContain('CONTROL_FIT_SKIPPED');
   });
 
   it('rejects channels of unequal length', () => {

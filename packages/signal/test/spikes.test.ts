@@ -120,4 +120,17 @@ describe('unitQuality', () => {
     expect(q.warnings.map((w) => w.code)).toEqual(['SPIKES_SORTED', 'DUPLICATE_SPIKES_REMOVED']);
     expect(q.durationSec).toBe(1);
   });
+
+  it('rejects a reversed or non-finite recording span and spikes outside it, instead of a NaN or wrong rate', () => {
+    const t = [0.1, 0.5, 0.9, 1.3, 1.30001, 2.2];
+    // Before: durationSec −5, rateHz NaN, contamination NaN and no flag.
+    expect(() => unitQuality(t, { startSec: 10, endSec: 5 })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
+    expect(() => unitQuality(t, { startSec: 0, endSec: Number.NaN })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
+    // Before: a span ending at 1 s gave rate 6 Hz from 6 spikes, 3 of them after the span.
+    expect(() => unitQuality(t, { startSec: 0, endSec: 1 })).toThrow(
+      expect.objectContaining({ code: 'TF_WINDOW_OUT_OF_RANGE', details: expect.objectContaining({ index: 3, time: 1.3 }) }),
+    );
+    // Spikes on the span's edges are inside it: rate 6/3 Hz (arithmetic).
+    expectAllClose(unitQuality(t, { startSec: 0.1, endSec: 3.1 }).rateHz, 2, { rtol: 1e-15 });
+  });
 });

@@ -50,6 +50,18 @@ describe('welch', () => {
     expectAllClose(p[63]!, 0.02, { rtol: 0.03 });
   });
 
+  it('uses a window of ones for one-sample segments, as scipy, instead of hann(1) = [0] and NaN power', () => {
+    // scipy 1.17.1: get_window('hann', 1) = get_window('hamming', 1) = [1.];
+    // welch([5, 7, 1], fs=100, nperseg=1, detrend=False) → ([0.], [0.25]) = mean(25, 49, 1)/100;
+    // with the default constant detrend, and for a one-sample input, [0.].
+    const s = { values: Float64Array.of(5, 7, 1), sampleRate: 100, t0: 0 };
+    for (const window of ['hann', 'hamming'] as const) {
+      expectAllClose(welch(s, { segmentLength: 1, detrend: 'none', window }).power, [0.25], { rtol: 1e-15 });
+      expectAllClose(welch(s, { segmentLength: 1, window }).power, [0], { atol: 0 });
+    }
+    expectAllClose(welch({ values: Float64Array.of(5), sampleRate: 100, t0: 0 }).power, [0], { atol: 0 });
+  });
+
   it('shortens the segment to the input length with a warning and refuses NaN', () => {
     const r = welch({ values: new Float64Array(100).fill(1), sampleRate: 10, t0: 0 });
     expect(r.segmentLength).toBe(100);

@@ -70,13 +70,14 @@ export interface ConditionedSite {
   readonly fittedControl: UniformSignal | null;
   /** ΔF/F (fraction). */
   readonly dff: UniformSignal;
-  /** z-scored ΔF/F and its centre and scale. */
+  /** z-scored ΔF/F and its centre and scale (values and scale NaN for a degenerate sensor channel). */
   readonly z: ZScoreResult;
   /** False when the control was degenerate or clipped and only the bleaching baseline was used. */
   readonly motionCorrected: boolean;
   /**
-   * 'control-degenerate', 'control-clipped', 'signal-clipped', 'slope-nonpositive', 'low-r2',
-   * 'reference-nonpositive', 'fit-not-converged', 'bleach-fit-unreliable'.
+   * 'control-degenerate', 'control-clipped', 'signal-degenerate', 'signal-clipped',
+   * 'slope-nonpositive', 'low-r2', 'reference-nonpositive', 'fit-not-converged',
+   * 'bleach-fit-unreliable'.
    */
   readonly flags: readonly string[];
   readonly warnings: readonly ResultWarning[];
@@ -249,8 +250,11 @@ function dffOverFitted(a: number, b: number, C: Float64Array, S: Float64Array, f
  * ('subtract', §1.7). (5) z-score.
  * A control with sd < 1e-6·|mean| or a clipped control is not used for division: the site is
  * returned with `motionCorrected: false`, ΔF/F against the signal's bleaching baseline, and a
- * flag. Flags also mark slope ≤ 0, OLS R² < 0.05 on the low-passed data, non-positive references
- * (set to NaN, counted), non-convergence and unreliable bleaching fits.
+ * flag. A sensor channel with sd < 1e-6·|mean| (constant: a dead channel) keeps its ΔF/F (zero
+ * up to rounding) but gets a NaN z-score, the flag 'signal-degenerate' and the warning
+ * SIGNAL_DEGENERATE, since z-scoring rounding residue would give arbitrary values. Flags also mark
+ * slope ≤ 0, OLS R² < 0.05 on the low-passed data, non-positive references (set to NaN, counted),
+ * non-convergence and unreliable bleaching fits.
  *
  * @param site - Sensor and control channels on one grid.
  * @throws {TuningforkError} TF_SHAPE_MISMATCH (channels of unequal length or grids), TF_NON_FINITE
@@ -326,6 +330,15 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
     bleachS = estimateBleaching(fSig, bleachOpts);
     fitS = relative(fSig.values, bleachS);
     if (unreliable(bleachS)) flags.push('bleach-fit-unreliable');
+  }
+
+  // Degenerate sensor? A constant sensor channel has ΔF/F 0 up to rounding, and z-scoring that
+  // rounding residue would give arbitrary values of order 1.
+  const { mean: sMean, sd: sSd } = finiteMeanSd(fSig.values);
+  const signalDegenerate = !(sSd > 1e-6 * Math.abs(sMean));
+  if (signalDegenerate) {
+    flags.push('signal-degenerate');
+    warnings.push({ code: 'SIGNAL_DEGENERATE', message: `${fn}${where}: the sensor channel is constant (sd ${sSd} vs mean ${sMean}, < 1e-6 of |mean|); its ΔF/F carries only rounding error, so the z-score is undefined and set to NaN.`, details: { sd: sSd, mean: sMean } });
   }
 
   // Degenerate control?
@@ -404,7 +417,8 @@ export function conditionSite(site: PhotometrySite, options: ConditionSiteOption
     if (bleaching.control) warnings.push(...bleaching.control.warnings.map((w) => ({ ...w, message: `control: ${w.message}` })));
   }
   const dffSig = sig(dff, fSig);
-  const z = zMethod === 'session' ? sessionZ(dffSig) : zScore(dffSig, { method: zMethod, baselineSec: opts.baselineSec, nan: 'omit' });
+  let z = zMethod === 'session' ? sessionZ(dffSig) : zScore(dffSig, { method: zMethod, baselineSec: opts.baselineSec, nan: 'omit' });
+  if (signalDegenerate) z = { ...z, signal: sig(new Float64Array(n).fill(NaN), fSig), scale: NaN };
   return {
     name,
     filtered: { signal: fSig, control: fCtl },

@@ -293,6 +293,37 @@ class FusedPass {
   }
 }
 
+/** Largest |v| over the strided samples allowed without rescaling, and the smallest non-zero one. */
+const SAFE_HIGH = 2 ** 128;
+const SAFE_LOW = 2 ** -128;
+
+/** 0 when max|v| over the strided samples lies in [2^−128, 2^128] (or is 0); else e with max|v|·2^−e in [0.5, 1). */
+function rescaleExponent(v: Float64Array, stride: number): number {
+  let mx = 0;
+  for (let i = 0; i < v.length; i += stride) {
+    const a = Math.abs(v[i]!);
+    if (a > mx) mx = a;
+  }
+  if (mx === 0 || (mx >= SAFE_LOW && mx <= SAFE_HIGH)) return 0;
+  let e = Math.floor(Math.log2(mx)) + 1;
+  // log2 may round across a power of two: make max·2^−e land in [0.5, 1).
+  while (mx * 2 ** -e >= 1) e++;
+  while (mx * 2 ** -e < 0.5) e--;
+  return e;
+}
+
+/** v·2^−e (exact: a power-of-two scaling of values that stay normal). */
+function scaledCopy(v: Float64Array, e: number): Float64Array {
+  if (e === 0) return v;
+  const out = new Float64Array(v.length);
+  // Two factors, each within the double range, for exponents beyond ±1023.
+  const h = Math.trunc(e / 2);
+  const f1 = 2 ** -h;
+  const f2 = 2 ** -(e - h);
+  for (let i = 0; i < v.length; i++) out[i] = v[i]! * f1 * f2;
+  return out;
+}
+
 /** Centred sums of a line fit y ≈ a + b·x over the strided samples. */
 export interface OlsMoments {
   /** Samples used. */
@@ -365,7 +396,9 @@ export function olsMoments(fn: string, x: Float64Array, y: Float64Array, stride 
  * means, so large offsets cost no precision; the median uses exact linear-time selection. From
  * the second iteration on, the median and the weighted sums share one pass over the data (the
  * sums regrouped by weight class, equal to the two-pass sums up to rounding), which halves the
- * memory traffic of long full-rate fits.
+ * memory traffic of long full-rate fits. Data whose magnitude lies beyond 2^±128 (≈ 3·10^±38),
+ * where squares and fourth powers would overflow or underflow, are fitted as exact power-of-two
+ * rescaled copies and the line is scaled back.
  *
  * @param signal - Sensor channel samples (finite).
  * @param control - Isosbestic control samples, same length (finite, not constant).
@@ -405,6 +438,15 @@ export function fitControl(signal: ArrayLike<number>, control: ArrayLike<number>
   const n = x.length;
   const m = Math.ceil(n / stride);
   if (m < 3) throw new TuningforkError('TF_TOO_FEW_SAMPLES', `${fn}: need at least 3 samples for the fit, got ${m}.`, { fn, n: m });
+  // Magnitudes beyond 2^±128 would overflow or underflow the squares and fourth powers of the
+  // IRLS sums (NaN or "all weights vanished"). The fit is equivariant under scaling, so fit exact
+  // power-of-two rescaled copies and scale the line back (never taken for data inside the range).
+  const ex = rescaleExponent(x, stride);
+  const ey = rescaleExponent(y, stride);
+  if (ex !== 0 || ey !== 0) {
+    const f = fitControl(scaledCopy(y, ey), scaledCopy(x, ex), options);
+    return { ...f, intercept: f.intercept * 2 ** ey, slope: f.slope * 2 ** (ey - ex), scale: f.scale * 2 ** ey };
+  }
 
   const { mx, my, sxx, sxy, syy } = olsMoments(fn, x, y, stride);
   // Centred coordinates: yc ≈ ac + b·xc. OLS: ac = 0.

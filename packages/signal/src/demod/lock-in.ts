@@ -16,6 +16,8 @@ export interface LockInOptions {
    * Recorded LED drive of each carrier (same grid as the detector), or null. When given, each
    * carrier's exact frequency and phase are measured from its drive (least-squares line through the
    * drive's demodulated phase) and used as the reference; output phases are relative to the drive.
+   * A drive that is constant, or whose phase is not such a line (within 0.5 rad RMS), carries no
+   * steady carrier near its nominal frequency and is refused (TF_DEGENERATE_SIGNAL).
    * @defaultValue null
    */
   references?: readonly UniformSignal[] | null;
@@ -62,6 +64,42 @@ function mix(x: Float64Array, fs: number, t0: number, f: number, phi: number, si
   }
 }
 
+/** RMS departure (radians) of a drive's demodulated phase from its fitted line above which the drive is refused. */
+const MAX_DRIVE_PHASE_RMS = 0.5;
+
+/**
+ * Refuse a recorded drive that cannot serve as the reference of carrier f0: a constant drive (no
+ * carrier at all), or one whose demodulated phase does not follow a straight line (no steady
+ * component within the low-pass band of f0: a drive of another carrier, noise, the wrong
+ * channel). Either would otherwise yield an arbitrary "refined" frequency and phase, and the
+ * carrier's amplitude demodulated at that frequency would be silently wrong.
+ */
+function checkDrive(fn: string, ci: number, f0: number, drive: Float64Array, phases: Float64Array, cnt: number, a: number, step: number, fs: number, t0: number, slope: number, icpt: number): void {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < drive.length; i++) {
+    const v = drive[i]!;
+    if (v < lo) lo = v;
+    if (v > hi) hi = v;
+  }
+  if (!(hi > lo)) {
+    throw new TuningforkError('TF_DEGENERATE_SIGNAL', `${fn}: references[${ci}] is constant (${lo}); a recorded drive must carry the ${f0} Hz carrier. Pass the LED drive of carriersHz[${ci}], or references: null to use the nominal frequency.`, { fn, parameter: `references[${ci}]`, index: ci, carrierHz: f0 });
+  }
+  let ss = 0;
+  for (let j = 0; j < cnt; j++) {
+    const d = phases[j]! - (icpt + slope * (t0 + (a + j * step) / fs));
+    ss += d * d;
+  }
+  const rms = Math.sqrt(ss / cnt);
+  if (!(rms <= MAX_DRIVE_PHASE_RMS)) {
+    throw new TuningforkError(
+      'TF_DEGENERATE_SIGNAL',
+      `${fn}: references[${ci}] has no steady component near ${f0} Hz: its demodulated phase departs from a straight line by ${rms.toPrecision(3)} rad RMS (at most ${MAX_DRIVE_PHASE_RMS} expected). Check that references[${ci}] is the LED drive of carriersHz[${ci}] (same order), or pass references: null.`,
+      { fn, parameter: `references[${ci}]`, index: ci, carrierHz: f0, phaseRms: rms },
+    );
+  }
+}
+
 /**
  * Lock-in (quadrature) demodulation of frequency-multiplexed carriers from one detector trace.
  *
@@ -75,7 +113,10 @@ function mix(x: Float64Array, fs: number, t0: number, f: number, phi: number, si
  *
  * @param trace - Detector samples (finite); fs ≥ 2.5 × the highest carrier is required.
  * @throws {TuningforkError} TF_BAD_OPTION (no carriers, a carrier ≥ fs/2, cutoff ≥ fs/2),
- *   TF_NON_FINITE (first bad sample), TF_SHAPE_MISMATCH (reference on another grid).
+ *   TF_NON_FINITE (first bad sample), TF_SHAPE_MISMATCH (reference on another grid),
+ *   TF_DEGENERATE_SIGNAL (a reference that is constant, or whose demodulated phase departs from
+ *   a straight line by more than 0.5 rad RMS: it carries no steady carrier near its nominal
+ *   frequency, e.g. references given in another order than carriersHz).
  * @example
  * ```ts
  * const { channels } = lockInDemodulate(trace, { carriersHz: [217, 319], cutoffHz: 15 });
@@ -145,6 +186,7 @@ export function lockInDemodulate(trace: UniformSignal, options: LockInOptions): 
       let unwrap = 0;
       let st = 0, sp = 0, stt = 0, stp = 0, cnt = 0;
       const step = Math.max(1, Math.floor(fs / (4 * cutoff)));
+      const phases = new Float64Array(Math.max(0, Math.ceil((b - a) / step)));
       for (let k = a; k < b; k += step) {
         let p = Math.atan2(cosBuf[k]!, sinBuf[k]!);
         if (!Number.isNaN(prev)) {
@@ -154,11 +196,13 @@ export function lockInDemodulate(trace: UniformSignal, options: LockInOptions): 
         p += unwrap;
         prev = p;
         const t = trace.t0 + k / fs;
+        phases[cnt] = p;
         st += t; sp += p; stt += t * t; stp += t * p; cnt++;
       }
       if (cnt >= 2) {
         const slope = (stp - (st * sp) / cnt) / (stt - (st * st) / cnt);
         const icpt = (sp - slope * st) / cnt;
+        checkDrive(fn, ci, f0, r.values, phases, cnt, a, step, fs, trace.t0, slope, icpt);
         f = f0 + slope / (2 * Math.PI);
         // phase(t) = icpt + slope·t relative to a reference at f0; at frequency f the drive phase is icpt.
         phi = icpt;

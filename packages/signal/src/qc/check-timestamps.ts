@@ -24,7 +24,7 @@ export interface TimestampReport {
   readonly droppedSamples: number;
   /** Largest |Δt − 1/fs|, s. */
   readonly maxDeviationSec: number;
-  /** Non-finite timestamps. */
+  /** Non-finite timestamps (the intervals either side of one are not used). */
   readonly nonFinite: number;
 }
 
@@ -51,11 +51,12 @@ export function checkTimestamps(timestamps: ArrayLike<number>, options: CheckTim
   let m = 0;
   for (let i = 1; i < n; i++) {
     const dt = t[i]! - t[i - 1]!;
+    // A non-finite timestamp (counted in nonFinite) bounds no usable interval: without this skip,
+    // t = Infinity gave an infinite interval, droppedSamples Infinity and, inferred, sampleRate 0.
+    if (!Number.isFinite(dt)) continue;
     if (!(dt > 0)) {
-      if (Number.isFinite(dt)) {
-        nonInc++;
-        if (first < 0) first = i;
-      }
+      nonInc++;
+      if (first < 0) first = i;
       continue;
     }
     d[m++] = dt;

@@ -22,6 +22,9 @@ export interface SnrEstimate {
   readonly noiseSd: number;
 }
 
+/** Noise sd at or below this fraction of max|x| is rounding residue, not noise. */
+const NOISE_FLOOR = 1e-12;
+
 const DEFAULTS = Object.freeze({ bandHz: [0.1, 3] as readonly [number, number], noiseAboveHz: 5 });
 
 /**
@@ -30,7 +33,12 @@ const DEFAULTS = Object.freeze({ bandHz: [0.1, 3] as readonly [number, number], 
  * standard deviation (1.4826·MAD) of everything above 5 Hz. Both filters are zero-phase
  * Butterworth (band-pass order 2, high-pass order 4).
  *
- * @throws {TuningforkError} TF_NON_FINITE, TF_BAD_OPTION (bands above Nyquist), TF_TOO_FEW_SAMPLES.
+ * A trace with no measurable noise above `noiseAboveHz` (robust noise sd ≤ 1e-12·max|x|: a
+ * constant, piecewise-linear or noise-free synthetic channel, or a dead one) has no defined SNR:
+ * the ratio would be rounding error over rounding error (NaN, ±Infinity or ~10¹³), so it throws.
+ *
+ * @throws {TuningforkError} TF_NON_FINITE, TF_BAD_OPTION (bands above Nyquist), TF_TOO_FEW_SAMPLES,
+ *   TF_DEGENERATE_SIGNAL (no measurable noise, see above).
  */
 export function estimateSnr(signal: UniformSignal, options: SnrOptions = {}): SnrEstimate {
   const fn = 'estimateSnr';
@@ -55,5 +63,16 @@ export function estimateSnr(signal: UniformSignal, options: SnrOptions = {}): Sn
   const med = medianOf(yh);
   for (let i = 0; i < yh.length; i++) yh[i] = Math.abs(yh[i]! - med);
   const noiseSd = MAD_TO_SD * medianOf(yh);
+  let maxAbs = 0;
+  for (let i = 0; i < x.length; i++) maxAbs = Math.max(maxAbs, Math.abs(x[i]!));
+  // Filtering leaves rounding residue of order 1e-16·max|x|; a noise floor within 1e-12 of it
+  // (far below any detector's noise) means there is nothing to measure.
+  if (!(noiseSd > NOISE_FLOOR * maxAbs)) {
+    throw new TuningforkError(
+      'TF_DEGENERATE_SIGNAL',
+      `${fn}: signal has no measurable noise above ${noiseHz} Hz (robust sd ${noiseSd} against max|x| = ${maxAbs}); the SNR is undefined for a constant, noise-free or dead channel.`,
+      { fn, parameter: 'signal', noiseSd, maxAbs },
+    );
+  }
   return { snr: signalSd / noiseSd, signalSd, noiseSd };
 }

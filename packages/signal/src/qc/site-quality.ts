@@ -63,7 +63,10 @@ const DEFAULTS = Object.freeze({ timestamps: null, detectorRange: null, lowPassH
  * (> 10 dB over the local median: heartbeat, mains, frame rates). Per site: SNR of the sensor
  * ({@link estimateSnr}), Pearson r and OLS slope of signal on control after a low-pass, and the
  * timestamp checks when timestamps are given. Nothing is thrown for bad data: problems become
- * flags; steps that cannot run on non-finite data are skipped with a warning.
+ * flags; steps that cannot run (non-finite data, too few samples for the low-pass, a constant
+ * channel) are skipped with a warning. When `lowPassHz` is not below the Nyquist frequency (e.g.
+ * 10 Hz at 20 Hz sampling) the channels hold nothing above it, so r and the slope are computed on
+ * the unfiltered channels (warning LOWPASS_SKIPPED).
  *
  * @throws {TuningforkError} TF_SHAPE_MISMATCH (channels on different grids), TF_BAD_OPTION.
  */
@@ -112,19 +115,30 @@ export function siteQuality(site: PhotometrySite, options: SiteQualityOptions = 
     } catch (e) {
       warnings.push({ code: 'SNR_FAILED', message: `${fn}: SNR not estimated: ${(e as Error).message}` });
     }
+    let ls: Float64Array | null = site.signal.values;
+    let lc: Float64Array = site.control.values;
     if (lowPassHz < fs / 2) {
       const plan = zeroPhasePlan(butterworth({ order: 4, cutoffHz: lowPassHz, sampleRate: fs }));
       if (site.signal.values.length > plan.padLen) {
-        const ls = plan.apply(site.signal.values);
-        const lc = plan.apply(site.control.values);
-        try {
-          // The OLS line and r only (fitControl would also compute a median residual scale).
-          const f = olsMoments(fn, lc, ls);
-          slope = f.sxy / f.sxx;
-          r = f.syy > 0 ? f.sxy / Math.sqrt(f.sxx * f.syy) : NaN;
-        } catch (e) {
-          warnings.push({ code: 'CONTROL_FIT_FAILED', message: `${fn}: control–signal fit failed: ${(e as Error).message}` });
-        }
+        ls = plan.apply(site.signal.values);
+        lc = plan.apply(site.control.values);
+      } else {
+        ls = null;
+        warnings.push({ code: 'CONTROL_FIT_SKIPPED', message: `${fn}: ${site.signal.values.length} samples are too few for the ${lowPassHz} Hz low-pass (more than ${plan.padLen} needed); controlSignalR and controlSignalSlope are NaN.`, details: { n: site.signal.values.length, padLen: plan.padLen } });
+      }
+    } else {
+      // Sampled at ≤ 2·lowPassHz, the channels hold nothing above the cutoff: nothing to remove.
+      warnings.push({ code: 'LOWPASS_SKIPPED', message: `${fn}: lowPassHz ${lowPassHz} is not below the Nyquist frequency ${fs / 2} Hz; controlSignalR and controlSignalSlope use the unfiltered channels.`, details: { lowPassHz, nyquist: fs / 2 } });
+    }
+    if (ls !== null) {
+      try {
+        // The OLS line and r only (fitControl would also compute a median residual scale).
+        const f = olsMoments(fn, lc, ls);
+        slope = f.sxy / f.sxx;
+        r = f.syy > 0 ? f.sxy / Math.sqrt(f.sxx * f.syy) : NaN;
+        if (!(f.syy > 0)) warnings.push({ code: 'CONTROL_FIT_FAILED', message: `${fn}: the signal is constant after the low-pass; controlSignalR is undefined (NaN).` });
+      } catch (e) {
+        warnings.push({ code: 'CONTROL_FIT_FAILED', message: `${fn}: control–signal fit failed: ${(e as Error).message}` });
       }
     }
   }

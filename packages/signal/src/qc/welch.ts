@@ -36,7 +36,8 @@ const DEFAULTS = Object.freeze({ segmentLength: 256, overlap: null, window: 'han
 /** Periodic window exactly as scipy (general cosine evaluated on linspace(−π, π, M + 1)). */
 function windowValues(kind: 'hann' | 'hamming' | 'boxcar', m: number): Float64Array {
   const w = new Float64Array(m);
-  if (kind === 'boxcar') return w.fill(1);
+  // scipy returns ones for M ≤ 1 (_len_guards); the cosine formula would give hann(1) = [0] (NaN power).
+  if (kind === 'boxcar' || m <= 1) return w.fill(1);
   const alpha = kind === 'hann' ? 0.5 : 0.54;
   const step = (2 * Math.PI) / m; // linspace(−π, π, m + 1): step = 2π/m
   for (let i = 0; i < m; i++) {

@@ -1,4 +1,4 @@
-import { TuningforkError, checkNonNegative, checkPositive, resolveOptions } from '@tuningfork/core';
+import { TuningforkError, checkFinite, checkNonNegative, checkPositive, resolveOptions } from '@tuningfork/core';
 import type { ResultWarning } from '@tuningfork/core';
 import { asF64 } from '../internal/validate.js';
 
@@ -69,7 +69,7 @@ export function refractoryContamination(counts: RefractoryCounts): Contamination
 export interface UnitQualityOptions {
   /** Start of the recording, s; null = first spike. @defaultValue null */
   startSec?: number | null;
-  /** End of the recording, s; null = last spike. Give the true recording span when known. @defaultValue null */
+  /** End of the recording, s; null = last spike. Give the true recording span when known; every spike must lie in [startSec, endSec]. @defaultValue null */
   endSec?: number | null;
   /** Refractory period τ_R, s. @defaultValue 0.0015 */
   refractorySec?: number;
@@ -103,8 +103,10 @@ const DEFAULTS = Object.freeze({ startSec: null, endSec: null, refractorySec: 0.
  * shorter than refractorySec are counted (strict <) and converted to contamination estimates by
  * {@link refractoryContamination}. Thresholds (τ_R 1.5 ms, flag above 10 %) are common practice.
  *
- * @param times - Spike times of one unit, s (finite).
- * @throws {TuningforkError} TF_NON_FINITE (first bad index), TF_BAD_OPTION.
+ * @param times - Spike times of one unit, s (finite), inside [startSec, endSec] when those are given.
+ * @throws {TuningforkError} TF_NON_FINITE (first bad index), TF_BAD_OPTION (startSec/endSec not
+ *   finite numbers, or endSec ≤ startSec), TF_WINDOW_OUT_OF_RANGE (the first spike outside
+ *   [startSec, endSec], by index and time).
  * @example
  * ```ts
  * unitQuality([0, 0.001, 0.01, 0.0112, 0.05, 0.0504, 0.2]).violations; // 3
@@ -129,8 +131,23 @@ export function unitQuality(times: ArrayLike<number>, options: UnitQualityOption
   const tr = checkPositive(fn, 'refractorySec', opts.refractorySec);
   const tc = checkNonNegative(fn, 'censoredSec', opts.censoredSec);
   const maxC = checkNonNegative(fn, 'maxContamination', opts.maxContamination);
-  const start = opts.startSec ?? (m > 0 ? u[0]! : 0);
-  const end = opts.endSec ?? (m > 0 ? u[m - 1]! : 0);
+  const start = opts.startSec === null ? (m > 0 ? u[0]! : 0) : checkFinite(fn, 'startSec', opts.startSec);
+  const end = opts.endSec === null ? (m > 0 ? u[m - 1]! : 0) : checkFinite(fn, 'endSec', opts.endSec);
+  // With one end given, the other comes from the spikes, and the range check below catches a span
+  // that excludes them.
+  if (opts.startSec !== null && opts.endSec !== null && !(end > start)) {
+    throw new TuningforkError('TF_BAD_OPTION', `${fn}: the recording span [startSec, endSec] = [${start}, ${end}] s is empty or reversed; endSec must be after startSec.`, { fn, option: 'endSec', startSec: start, endSec: end });
+  }
+  for (let i = 0; i < t0.length; i++) {
+    const v = t0[i]!;
+    if (v < start || v > end) {
+      throw new TuningforkError(
+        'TF_WINDOW_OUT_OF_RANGE',
+        `${fn}: times[${i}] = ${v} s lies outside the recording span [${start}, ${end}] s given by startSec/endSec; the rate and contamination would use the wrong duration. Pass the true span (same clock and units as the spike times), or trim the spikes.`,
+        { fn, parameter: 'times', index: i, time: v, startSec: start, endSec: end },
+      );
+    }
+  }
   const duration = end - start;
   let violations = 0;
   for (let i = 1; i < m; i++) if (u[i]! - u[i - 1]! < tr) violations++;
