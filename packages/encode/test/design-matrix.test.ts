@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { expectAllClose } from '@tuningfork/test-utils';
-import { designMatrix, designToMatrix, matrixDesign, raisedCosineBasis } from '../src/index.js';
+import { rng } from '@tuningfork/core';
+import { designMatrix, designToMatrix, matrixDesign, poissonGLMCV, raisedCosineBasis } from '../src/index.js';
 
 const grid = { startSec: 0, endSec: 20, binRate: 10 };
 
@@ -93,5 +94,48 @@ describe('matrixDesign', () => {
     // stored centred by the column mean (the intercept absorbs it)
     expectAllClose(designToMatrix(d).data, [-2, -2.333333333333333, 0, -0.3333333333333335, 2, 2.666666666666667], { rtol: 1e-14 });
     expect(() => matrixDesign({ data: new Float64Array(6), rows: 3, cols: 2 }, { columnGroups: ['a'] })).toThrow(expect.objectContaining({ code: 'TF_SHAPE_MISMATCH' }));
+  });
+
+  // n × 3 design: two random columns and a third filled with `c` (an event that never occurs, c = 0,
+  // or a constant such as an intercept column).
+  const withConstant = (c: number, n = 300) => {
+    const r = rng(11);
+    const x = new Float64Array(n * 3);
+    for (let i = 0; i < n; i++) {
+      x[i * 3] = r.normal();
+      x[i * 3 + 1] = r.normal();
+      x[i * 3 + 2] = c;
+    }
+    const counts = Float64Array.from({ length: n }, (_, i) => Math.floor(3 * r.uniform() * Math.exp(0.3 * x[i * 3]!)));
+    const two = new Float64Array(n * 2);
+    for (let i = 0; i < n; i++) two.set(x.subarray(i * 3, i * 3 + 2), i * 2);
+    return { x: { data: x, rows: n, cols: 3 }, two: { data: two, rows: n, cols: 2 }, counts };
+  };
+
+  it('refuses a group whose every column is constant (an event that never occurred) instead of testing an empty group', () => {
+    // Before: the group got ΔR² = 0 and a shift-null p = 1, a test of nothing reported as a result.
+    const { x } = withConstant(0);
+    expect(() => matrixDesign(x, { columnGroups: ['a', 'a', 'never'] })).toThrow(expect.objectContaining({ code: 'TF_TOO_FEW_SAMPLES', details: { group: 'never' } }));
+  });
+
+  it('drops constant columns with a warning, so fits equal those of the design without them', () => {
+    for (const c of [0, 0.1]) {
+      const { x, two, counts } = withConstant(c);
+      const d = matrixDesign(x, { columnGroups: ['a', 'b', 'b'], columnNames: ['u', 'v', 'flat'], binRate: 10 });
+      expect(d.nCols).toBe(2);
+      expect(d.columnNames).toEqual(['u', 'v']);
+      expect(d.warnings.some((w) => w.code === 'TF_DEGENERATE_SIGNAL' && (w.details as { dropped: string[] }).dropped[0] === 'flat')).toBe(true);
+      const ref = matrixDesign(two, { columnGroups: ['a', 'b'], columnNames: ['u', 'v'], binRate: 10 });
+      // Before: the constant column made the GLM's Fisher information singular (every SE NaN with
+      // c = 0; a slope of −4e12 with c = 0.1, whose centred column is a rounding-size constant).
+      const units = [{ name: 'u', values: counts }];
+      const got = poissonGLMCV(d, units, { threads: 1 }).cells[0]!;
+      const want = poissonGLMCV(ref, units, { threads: 1 }).cells[0]!;
+      expect(Array.from(got.coefficientSE).every(Number.isFinite)).toBe(true);
+      // Same columns, same rows, same code path: identical bits.
+      expectAllClose(got.coefficients, want.coefficients, { rtol: 0 });
+      expectAllClose(got.coefficientSE, want.coefficientSE, { rtol: 0 });
+      expectAllClose(got.cvDevianceExplained, want.cvDevianceExplained, { rtol: 0 });
+    }
   });
 });

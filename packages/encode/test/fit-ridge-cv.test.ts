@@ -72,6 +72,34 @@ describe('fitRidgeCV', () => {
     expect(Number.isFinite(f.cells[1]!.cvR2)).toBe(true);
   });
 
+  it('skips a cell that repeats one non-zero value (R² undefined) instead of returning ±Infinity', () => {
+    // Constant targets have zero variance, so R² = 1 − SSE/SST is 0/0 (undefined; the house rule
+    // is NaN with a warning). 0.1, 1/3 and 5.3 are not exact in binary: their running mean differs
+    // from the value by a few ulps, which is what a centred-sum-of-squares test alone misses.
+    for (const v of [0.1, 1 / 3, 5.3]) {
+      const f = fitRidgeCV(design, [{ name: 'flat', values: new Float64Array(cv.rows).fill(v) }, { name: 'y', values: cv.y }], { nFolds: cv.nFolds, penalties: cv.rhos, jackknifeBlocks: 0 });
+      const c0 = f.cells[0]!;
+      expect(c0.cvR2).toBeNaN();
+      expect(Array.from(c0.deltaR2).every(Number.isNaN)).toBe(true);
+      expect(c0.warnings.some((w) => w.code === 'TF_DEGENERATE_SIGNAL')).toBe(true);
+      expect(Number.isFinite(f.cells[1]!.cvR2)).toBe(true);
+    }
+  });
+
+  it('skips a cell whose NaN samples leave a test block without training rows, with a warning', () => {
+    // Usable samples only inside test block 1 (plus its gaps): every other block has no test
+    // rows, and block 1 has no training rows left, so no cross-validated prediction exists.
+    const f0 = fitRidgeCV(design, [{ name: 'y', values: cv.y }], { nFolds: cv.nFolds, gapSec: cv.gapBins, penalties: cv.rhos, jackknifeBlocks: 0 });
+    const a = f0.folds.testStart[1]!;
+    const b = f0.folds.testEnd[1]!;
+    const y = Float64Array.from(cv.y as Float64Array, (v, i) => (i >= a && i < b ? v : NaN));
+    const f = fitRidgeCV(design, [{ name: 'island', values: y }, { name: 'y', values: cv.y }], { nFolds: cv.nFolds, gapSec: cv.gapBins, penalties: cv.rhos, jackknifeBlocks: 0 });
+    const c0 = f.cells[0]!;
+    expect(c0.cvR2).toBeNaN();
+    expect(c0.warnings.some((w) => w.code === 'TF_TOO_FEW_SAMPLES' && (w.details as { fold: number }).fold === 1)).toBe(true);
+    expect(f.cells[1]!.cvR2).toBe(f0.cells[0]!.cvR2);
+  });
+
   it('warns when a group is collinear with the others', () => {
     const x = new Float64Array(cv.rows * 3);
     for (let i = 0; i < cv.rows; i++) {

@@ -37,6 +37,21 @@ describe('fitPoissonGLM', () => {
     expectAllClose([r.intercept, ...r.coefficients], [s.intercept, ...s.coefficients], { rtol: 1e-7, atol: 1e-9, source: fx.source });
   });
 
+  it('gives the AIC of large and of non-integer counts with log Γ(y + 1), like scipy', () => {
+    // Reference: gen_poisson_aic.py (scipy.special.gammaln; for the integer case checked against
+    // scipy.stats.poisson.logpmf). Before: log y! was a loop to y (minutes for 10⁹ counts per
+    // bin) that truncated y = 2.5 to log 2!, so the AIC of non-integer counts was silently off.
+    const ax = loadFixture('fixtures/scipy/poisson-aic.json', here(import.meta.url));
+    for (const c of [ax.large, ax.fractional]) {
+      const r = fitPoissonGLM({ data: c.x, rows: c.rows, cols: c.cols }, c.y);
+      // IRLS stops at a 1e-8 relative deviance change: coefficients to ~1e-9, and the AIC is
+      // stationary there; the large case's log-likelihood cancels terms of ~1e9 down to ~1e2,
+      // leaving ~1e-9 relative rounding.
+      expectAllClose([r.intercept, ...r.coefficients], [c.intercept, ...c.coefficients], { rtol: 1e-8, atol: 1e-9, source: ax.source });
+      expectAllClose(r.aic, c.aic, { rtol: 1e-8, source: ax.source });
+    }
+  });
+
   it('refuses all-zero counts, negative counts and mismatched shapes', () => {
     expect(() => fitPoissonGLM(dobsonX, new Float64Array(9))).toThrow(expect.objectContaining({ code: 'TF_DEGENERATE_SIGNAL' }));
     expect(() => fitPoissonGLM(dobsonX, [1, 2, 3, -1, 5, 6, 7, 8, 9])).toThrow(expect.objectContaining({ code: 'TF_BAD_VALUE' }));
@@ -47,6 +62,26 @@ describe('fitPoissonGLM', () => {
 describe('poissonGLMCV', () => {
   const c = fx.cv;
   const design = matrixDesign({ data: c.x, rows: c.rows, cols: c.cols }, { columnGroups: ['ev', 'slow', 'noise'], binRate: c.binRate });
+
+  it('reports NaN cross-validated deviance with a warning when a test block has spikes but its training rows none', () => {
+    // The training-mean rate of that fold is 0, so its held-out deviance is undefined. Before, the
+    // unit got a finite cvDevianceExplained set by the clamps (rate 1e-10, |η| ≤ 30) and no warning.
+    const f0 = poissonGLMCV(design, [{ name: 'u', values: c.y }], { nFolds: c.nFolds, gapSec: c.gapBins / c.binRate, penalty: c.penalty, threads: 1 });
+    const b = f0.folds.testEnd[0]!;
+    const early = Float64Array.from(c.y as Float64Array, (v, i) => (i < b ? v : 0)); // stops firing after block 0
+    const island = Float64Array.from(c.y as Float64Array, (v, i) => (i >= f0.folds.testStart[1]! && i < f0.folds.testEnd[1]! ? v : NaN));
+    const r = poissonGLMCV(design, [{ name: 'early', values: early }, { name: 'island', values: island }, { name: 'u', values: c.y }], { nFolds: c.nFolds, gapSec: c.gapBins / c.binRate, penalty: c.penalty, threads: 1, contributions: true });
+    for (const [k, fold] of [[0, 0], [1, 1]] as const) {
+      const u = r.cells[k]!;
+      expect(u.cvDevianceExplained).toBeNaN();
+      expect(u.bitsPerSpike).toBeNaN();
+      expect(Array.from(u.deltaDeviance).every(Number.isNaN)).toBe(true);
+      expect(u.warnings.some((w) => w.code === 'TF_TOO_FEW_SAMPLES' && (w.details as { fold: number }).fold === fold)).toBe(true);
+    }
+    // the full-data fit is still reported; a unit firing throughout is unaffected
+    expect(Number.isFinite(r.cells[0]!.intercept)).toBe(true);
+    expect(r.cells[2]!.cvDevianceExplained).toBe(f0.cells[0]!.cvDevianceExplained);
+  });
 
   it('matches scipy blocked-CV deviance explained and bits per spike (training-only standardised penalty, log Δt offset)', () => {
     // tol 1e-10: fold fits (kept Hessian, linear convergence) stop at a 1e-12 relative change, so

@@ -2,6 +2,7 @@ import { TuningforkError, checkBoolean, checkFinite, checkInteger, checkNonNegat
 import type { Matrix } from '@tuningfork/core';
 import { hessianInverse, irls } from './poisson-irls.js';
 import type { PoissonProblem } from './poisson-irls.js';
+import { logFactorial } from '../internal/log-factorial.js';
 
 /** Options of {@link fitPoissonGLM}. */
 export interface FitPoissonGLMOptions {
@@ -27,7 +28,11 @@ export interface PoissonGLMResult {
   /** Poisson deviance 2Σ[y log(y/μ) − (y − μ)], and that of the intercept-only model. */
   readonly deviance: number;
   readonly nullDeviance: number;
-  /** −2·log-likelihood + 2(p + 1) (with p + 1 parameters, as for an unpenalised fit). */
+  /**
+   * −2·log-likelihood + 2(p + 1) (with p + 1 parameters, as for an unpenalised fit). The
+   * log-likelihood uses log Γ(y + 1) = log y!, so non-integer counts get its continuous extension
+   * (as statsmodels' Poisson family; common practice).
+   */
   readonly aic: number;
   readonly iterations: number;
   readonly converged: boolean;
@@ -37,11 +42,6 @@ export interface PoissonGLMResult {
 
 const DEFAULTS = Object.freeze({ penalty: 0, standardize: true, offset: 0, tol: 1e-8, maxIterations: 50 });
 
-function logFactorial(k: number): number {
-  let s = 0;
-  for (let i = 2; i <= k; i++) s += Math.log(i);
-  return s;
-}
 
 /**
  * Poisson regression with log link (optionally ridge-penalised) by IRLS, for a dense design.

@@ -109,7 +109,11 @@ const DEFAULTS = Object.freeze({
  * spike-history effects are not modelled).
  *
  * Units whose counts are all zero or constant are skipped with TF_DEGENERATE_SIGNAL in their
- * warnings (NaN results); NaN counts are masked and counted.
+ * warnings (NaN results); NaN counts are masked and counted. A unit with spikes in some test
+ * block but none on that block's training rows (it fired only in one part of the session, or
+ * its NaN counts leave no training rows) has an undefined held-out deviance (training-mean rate
+ * 0): its cvDevianceExplained, bitsPerSpike and deltaDeviance are NaN with a TF_TOO_FEW_SAMPLES
+ * warning naming the block; the full-data fit and kernels are still reported.
  *
  * @throws {TuningforkError} TF_SHAPE_MISMATCH; TF_BAD_VALUE (a negative or non-finite count);
  *   TF_TOO_FEW_SAMPLES (folds); TF_UNKNOWN_OPTION / TF_BAD_OPTION.

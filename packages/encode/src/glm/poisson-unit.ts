@@ -142,11 +142,29 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
     let dConst = 0;
     let itTot = full.iterations;
     let conv = full.converged;
+    // First fold whose test block holds spikes but whose training rows hold none: the
+    // training-mean rate is 0 there, so the held-out deviance is undefined (-1: none).
+    let emptyFold = -1;
+    let emptySpikes = 0;
     for (let f = 0; f < folds.nFolds; f++) {
       const a = folds.testStart[f]!;
       const b = folds.testEnd[f]!;
       const ea = Math.max(0, a - gap);
       const eb = Math.min(n, b + gap);
+      let ySumEx = 0;
+      let ySumTe = 0;
+      for (let t = ea; t < eb; t++) {
+        if (valid && !valid[t]) continue;
+        ySumEx += y[t]!;
+        if (t >= a && t < b) ySumTe += y[t]!;
+      }
+      if (ySumTe > 0 && !(nSpk - ySumEx > 0)) {
+        if (emptyFold < 0) {
+          emptyFold = f;
+          emptySpikes = ySumTe;
+        }
+        continue;
+      }
       const train = Int32Array.from([0, ea, eb, n]);
       const ex = colStats(sub, ea, eb, valid);
       const pen = penaltyFrom(lam, tot, ex);
@@ -191,10 +209,15 @@ export function fitUnit(ctx: GlmContext, u: UnitInput, ui: number): PoissonCellF
       for (let t = a; t < b; t++) eta[t] = c0;
       dConst += deviance(prob, testR, eta);
     }
-    return { full, sub, dTest, dConst, itTot, conv };
+    const undefinedCV = emptyFold >= 0;
+    return { full, sub, dTest: undefinedCV ? NaN : dTest, dConst: undefinedCV ? NaN : dConst, itTot, conv, emptyFold, emptySpikes };
   };
   const main = fitModel(null);
   if (!main.conv) warnings.push({ code: 'TF_FIT_FAILED', message: `${fn}: unit '${name}': IRLS did not converge in ${maxIt} iterations for at least one fold.`, details: { cell: name } });
+  if (main.emptyFold >= 0) {
+    const f = main.emptyFold;
+    warnings.push({ code: 'TF_TOO_FEW_SAMPLES', message: `${fn}: unit '${name}' has ${main.emptySpikes} spikes in test block ${f} (rows ${folds.testStart[f]}–${folds.testEnd[f]}) but none on that block's training rows, so the training-mean rate is 0 and the held-out deviance is undefined; cvDevianceExplained, bitsPerSpike and deltaDeviance are NaN (the full-data fit is kept). Use fewer folds or check the unit's stability.`, details: { cell: name, fold: f, nTestSpikes: main.emptySpikes } });
+  }
   const cvDE = 1 - main.dTest / main.dConst;
   const bits = (main.dConst - main.dTest) / (2 * nSpk * Math.LN2);
   const delta = new Float64Array(design.groups.length).fill(NaN);

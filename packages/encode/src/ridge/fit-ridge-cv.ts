@@ -105,8 +105,11 @@ export const PREPARED = new WeakMap<RidgeCVResult, Prepared>();
  * with Student t quantiles on J − 1 degrees of freedom.
  *
  * NaN samples of a cell are masked (that cell gets its own factorisations) and counted in
- * `nMissing`. A constant cell (e.g. all-zero counts) or one with too few samples is skipped
- * with a warning and NaN results, so one bad cell never stops a batch.
+ * `nMissing`. A constant cell (all-zero counts, or any value repeated on every usable sample:
+ * R² is undefined) or one with too few samples is skipped with a warning (TF_DEGENERATE_SIGNAL,
+ * TF_TOO_FEW_SAMPLES) and NaN results, so one bad cell never stops a batch; so is a cell whose
+ * NaN samples leave a test block with usable samples but fewer than 2 usable training rows
+ * (TF_TOO_FEW_SAMPLES).
  *
  * @param design - From {@link designMatrix} or {@link matrixDesign}.
  * @param cells - Signals on the design grid (one value per row).

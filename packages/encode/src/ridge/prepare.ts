@@ -124,6 +124,8 @@ export function prepare(fn: string, design: EncodingDesign, cells: readonly Cell
     }
     let s = 0;
     let c = 0;
+    let lo = Infinity;
+    let hi = -Infinity;
     const nanRows: number[] = [];
     for (let i = 0; i < n; i++) {
       if (design.rowValid && !design.rowValid[i]) continue;
@@ -131,6 +133,8 @@ export function prepare(fn: string, design: EncodingDesign, cells: readonly Cell
       if (Number.isFinite(x)) {
         s += x;
         c++;
+        if (x < lo) lo = x;
+        if (x > hi) hi = x;
       } else {
         nanRows.push(i);
       }
@@ -148,7 +152,9 @@ export function prepare(fn: string, design: EncodingDesign, cells: readonly Cell
     y.push(yc);
     let skip: ResultWarning | null = null;
     if (c < minRows) skip = { code: 'TF_TOO_FEW_SAMPLES', message: `${fn}: cell '${name}' has ${c} usable samples; at least ${minRows} are needed for ${design.nCols} columns. Skipped.`, details: { cell: name, nUsed: c } };
-    else if (!(ss > 0)) skip = { code: 'TF_DEGENERATE_SIGNAL', message: `${fn}: cell '${name}' is constant over its usable samples (e.g. all-zero counts); nothing to explain. Skipped.`, details: { cell: name } };
+    // Constancy by value, not by the centred sum of squares: the mean of a constant such as 0.1
+    // is not exactly 0.1 in floating point, which leaves ss ≈ 1e-30 > 0 and an R² of ±∞.
+    else if (!(ss > 0) || lo === hi) skip = { code: 'TF_DEGENERATE_SIGNAL', message: `${fn}: cell '${name}' is constant over its usable samples (e.g. all-zero counts); nothing to explain. Skipped.`, details: { cell: name } };
     skipped.push(skip);
     const key = nanRows.join(',');
     let pi = keyOf.get(key);
@@ -170,6 +176,18 @@ export function prepare(fn: string, design: EncodingDesign, cells: readonly Cell
     const sums = pt.rows.length > 0 ? removeRows(base, design, layout.cuts, pt.rows) : base;
     const plan = new RidgeCVPlan(sums, layout.cuts, layout.testStart, layout.testEnd, layout.gapBins, models);
     return { mask: pt.mask, sums, plan, cells: pt.cells };
+  });
+  // A cell whose NaN samples leave some test block without any training row (e.g. the recording
+  // holds data only around one block) has no cross-validated prediction there: skip it.
+  plans.forEach((pl) => {
+    const f = pl.plan.folds.findIndex((fd) => fd.nTe > 0 && fd.nTr < 2);
+    if (f < 0) return;
+    const fd = pl.plan.folds[f]!;
+    for (const ci of pl.cells) {
+      if (skipped[ci]) continue;
+      const name = names[ci]!;
+      skipped[ci] = { code: 'TF_TOO_FEW_SAMPLES', message: `${fn}: cell '${name}' has ${fd.nTe} usable samples in test block ${f} (rows ${layout.testStart[f]}–${layout.testEnd[f]}) but ${fd.nTr} usable training rows outside it; its NaN samples leave that block without a model. Skipped.`, details: { cell: name, fold: f, nTrain: fd.nTr, nTest: fd.nTe } };
+    }
   });
   const sums = y.map((yc, ci) => cellSums(design, layout.cuts, yc, plans[cellPattern[ci]!]!.mask));
   return { design, layout, models, tested, nuisance, penalties: pens, names, y, yMean, nMissing, skipped, patterns: plans, cellPattern, sums };
