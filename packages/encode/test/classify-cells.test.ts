@@ -35,6 +35,14 @@ describe('classifyCells', () => {
     expect(G).toBe(4);
   });
 
+  it("labels a cell the fit skipped 'not-fitted', not 'none' (a dead channel is not an untuned cell)", () => {
+    const dead = [...cells, { name: 'dead', values: new Float64Array(design.nRows).fill(0.1) }];
+    const f2 = fitRidgeCV(design, dead, { jackknifeBlocks: 0 });
+    expect(f2.cells[6]!.warnings.map((w) => w.code)).toContain('TF_DEGENERATE_SIGNAL');
+    const c2 = classifyCells(design, f2, shiftNull(design, f2, { nShifts: 199, seed: 3 }));
+    expect(c2.cells.map((c) => c.class)).toEqual([...spec.map((s) => s[2]), 'not-fitted']);
+  });
+
   it('uses custom roles and the minimum ΔR², and refuses unknown roles', () => {
     const renamed = classifyCells(design, fit, nul, { groupRoles: { cue: 'reward', reward: 'other' } });
     expect(renamed.cells[4]!.class).toBe('reward'); // the cue cell now counts as reward

@@ -4,8 +4,13 @@ import type { EncodingDesign } from '../design/design-matrix.js';
 import type { RidgeCVResult } from '../ridge/fit-ridge-cv.js';
 import type { ShiftNullResult } from '../null/shift-null.js';
 
-/** Tuning class of a cell. 'unattributed': the full model is significant but no group alone is (collinearity). */
-export type TuningClass = 'reward' | 'movement' | 'mixed' | 'action-prediction' | 'unattributed' | 'none';
+/**
+ * Tuning class of a cell. 'unattributed': the full model is significant but no group alone is
+ * (collinearity). 'not-fitted': the encoding fit skipped the cell (constant, too few samples, a
+ * test block without training data; see the fit's warnings), so nothing was tested — unlike
+ * 'none', which is a tested cell without significant tuning.
+ */
+export type TuningClass = 'reward' | 'movement' | 'mixed' | 'action-prediction' | 'unattributed' | 'none' | 'not-fitted';
 
 /** What a variable group stands for in the classification. */
 export type GroupRole = 'reward' | 'movement' | 'action-prediction' | 'other';
@@ -58,7 +63,7 @@ const DEFAULTS = Object.freeze({ groupRoles: {} as Readonly<Record<string, Group
 const ROLES: readonly GroupRole[] = ['reward', 'movement', 'action-prediction', 'other'];
 
 /**
- * Classify cells as reward, movement, mixed, action-prediction, unattributed or none from their
+ * Classify cells as reward, movement, mixed, action-prediction, unattributed, none or not-fitted from their
  * unique contributions and shift-null p-values, with FDR control across cells.
  *
  * Group p-values of all cells × tested groups are adjusted together (Benjamini–Hochberg by
@@ -67,7 +72,9 @@ const ROLES: readonly GroupRole[] = ['reward', 'movement', 'action-prediction', 
  * reward and movement roles both significant → mixed; only reward → reward; only movement →
  * movement; only action-prediction → action-prediction; action-prediction with reward or
  * movement → mixed; no role group significant but the full model significant → unattributed
- * (shared variance that collinear groups cannot split); otherwise none. Groups with role 'other'
+ * (shared variance that collinear groups cannot split); otherwise none. A cell the fit skipped
+ * (cvR² NaN: constant, too few samples; the fit's warnings say why) is 'not-fitted', never
+ * counted as untuned. Groups with role 'other'
  * (e.g. cue) never set the label. The sign is that of the dominant significant group's response:
  * the extreme value over its kernels, each scaled by the RMS of its event weights (or covariate SD).
  *
@@ -113,7 +120,8 @@ export function classifyCells(design: EncodingDesign, fit: RidgeCVResult, nul: S
     const mv = has('movement');
     const ap = has('action-prediction');
     let cls: TuningClass;
-    if ((rw && mv) || (ap && (rw || mv))) cls = 'mixed';
+    if (!(cf.cvR2 === cf.cvR2)) cls = 'not-fitted';
+    else if ((rw && mv) || (ap && (rw || mv))) cls = 'mixed';
     else if (rw) cls = 'reward';
     else if (mv) cls = 'movement';
     else if (ap) cls = 'action-prediction';
