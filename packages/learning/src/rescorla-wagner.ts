@@ -34,9 +34,15 @@ export interface RescorlaWagnerResult {
  *
  * For a single cue with constant r and V_1 = V0: δ_k = (r − V0)(1 − α)^(k−1).
  *
+ * Cue intensities scale the step: on a trial with cues x the error shrinks by the factor
+ * 1 − Σ_i α_i·x_i², so the recursion oscillates with growing amplitude when Σ_i α_i·x_i² > 2 on
+ * repeated trials (the Widrow–Hoff stability condition; e.g. intensities in dB with α = 0.1). Such a
+ * run is reported once it overflows, never returned as ±Infinity or NaN.
+ *
  * @param outcomes - Outcome per trial (finite).
  * @returns values and prediction before each update, δ per trial, final strengths.
- * @throws {TuningforkError} TF_NON_FINITE (an outcome that is NaN or infinite, naming the trial),
+ * @throws {TuningforkError} TF_NON_FINITE (an outcome that is NaN or infinite, naming the trial; a
+ * diverging recursion whose prediction, error or strengths overflow, naming the trial),
  * TF_SHAPE_MISMATCH (cues rows ≠ trials, or per-cue arrays of the wrong length), TF_BAD_OPTION
  * (α outside [0, 1], negative or non-finite cue entries).
  *
@@ -49,6 +55,8 @@ export interface RescorlaWagnerResult {
  * - Rescorla, R. A. & Wagner, A. R. (1972). A theory of Pavlovian conditioning: variations in the
  *   effectiveness of reinforcement and nonreinforcement. In Black, A. H. & Prokasy, W. F. (eds),
  *   Classical Conditioning II: Current Research and Theory, 64–99. Appleton-Century-Crofts.
+ * - Widrow, B. & Hoff, M. E. (1960). Adaptive switching circuits. IRE WESCON Convention Record,
+ *   part 4, 96–104. (The same delta rule; its step-size stability bound.)
  */
 export function rescorlaWagner(outcomes: ArrayLike<number>, options: RescorlaWagnerOptions = {}): RescorlaWagnerResult {
   const fn = 'rescorlaWagner';
@@ -90,9 +98,29 @@ export function rescorlaWagner(outcomes: ArrayLike<number>, options: RescorlaWag
       pred += (cues === null ? 1 : cues.data[t * m + i]!) * v[i]!;
     }
     const d = r - pred;
+    if (!Number.isFinite(d)) throw diverged(fn, t, d, alpha, cues, m);
     prediction[t] = pred;
     delta[t] = d;
-    for (let i = 0; i < m; i++) v[i] = v[i]! + alpha[i]! * (cues === null ? 1 : cues.data[t * m + i]!) * d;
+    let finite = true;
+    for (let i = 0; i < m; i++) {
+      v[i] = v[i]! + alpha[i]! * (cues === null ? 1 : cues.data[t * m + i]!) * d;
+      if (!Number.isFinite(v[i]!)) finite = false;
+    }
+    if (!finite) throw diverged(fn, t, d, alpha, cues, m);
   }
   return { values: { data: values, rows: n, cols: m }, prediction, delta, final: v };
+}
+
+/** TF_NON_FINITE for a recursion that overflowed at trial t (finite inputs, unstable step size). */
+function diverged(fn: string, t: number, d: number, alpha: Float64Array, cues: Matrix | null, m: number): TuningforkError {
+  let gain = 0;
+  for (let i = 0; i < m; i++) {
+    const x = cues === null ? 1 : cues.data[t * m + i]!;
+    gain += alpha[i]! * x * x;
+  }
+  return new TuningforkError(
+    'TF_NON_FINITE',
+    `${fn}: trial ${t}: the associative strengths overflowed (prediction error ${formatValue(d)}): the recursion diverges because Σ α_i·x_i² over the cues present (${formatValue(gain)} on this trial) exceeds 2 on repeated trials. Lower alpha or rescale the cue intensities.`,
+    { fn, trial: t, gain },
+  );
 }

@@ -90,6 +90,23 @@ describe('parameterRecovery', () => {
     await expect(parameterRecovery({ model: 'q', nAgents: 3, estimator: 'empirical-bayes', empiricalBayes: { tol: 1 } as never })).rejects.toMatchObject({ code: 'TF_UNKNOWN_OPTION' });
   });
 
+  // Pearson's r = cov(x, y)/(sd(x)·sd(y)) is undefined when either variable has zero variance (textbook
+  // definition; the same for Spearman's r on ranks). A range [0.1, 0.1] fixes α for every agent (allowed:
+  // lo ≤ hi), so its recovery correlations must be NaN with a warning, not the rounding residue of the
+  // mean (0.1 · 3 / 3 ≠ 0.1 in binary: the centred column is ≈ 1e-17, not 0, which gave r ≈ 0).
+  it('parameterRecovery reports NaN and a warning for the correlations of a parameter fixed by its range', async () => {
+    const res = await parameterRecovery({ model: 'q', nAgents: 3, nTrials: 60, starts: 1, seed: 1, ranges: { alpha: [0.1, 0.1] } });
+    expect(Array.from(res.truth.data).filter((_, i) => i % 2 === 0)).toEqual([0.1, 0.1, 0.1]);
+    expect(res.correlation[0]).toBeNaN();
+    expect(res.rankCorrelation[0]).toBeNaN();
+    expect(res.trueCorrelation.data[1]).toBeNaN(); // α–β among the true values
+    expect(res.trueCorrelation.data[2]).toBeNaN();
+    expect(Number.isFinite(res.correlation[1]!)).toBe(true); // β still varies: its r is defined
+    const w = res.warnings.find((x) => x.code === 'correlation-undefined');
+    expect(w).toBeDefined();
+    expect(w!.details).toMatchObject({ constantTruth: ['alpha'], constantFitted: [] });
+  });
+
   it('parameterRecovery rejects a draw range outside the parameter domain', async () => {
     await expect(parameterRecovery({ model: 'q', nAgents: 3, ranges: { alpha: [0.5, 1.5] } })).rejects.toMatchObject({ code: 'TF_BAD_OPTION' });
   });

@@ -38,6 +38,26 @@ describe('rescorlaWagner', () => {
     expectAllClose(res.prediction[1]!, 0.1, { rtol: 1e-12, label: 'ΣV after one trial = 2·α·r' });
   });
 
+  // With cue intensity x, one cue and constant r, the recursion is the Widrow–Hoff (LMS) rule:
+  // δ_t = r·(1 − αx²)^t (derived from δ' = r − x(V + αxδ) = δ(1 − αx²); stable iff 0 < αx² < 2; Widrow & Hoff
+  // 1960). Intensities in physical units (70 dB) with α = 0.1 give αx² = 490: |δ_t| = 489^t passes
+  // Number.MAX_VALUE at t = ⌈ln MAX_VALUE / ln 489⌉ = 115, where the strengths overflow; before the fix the
+  // result silently held ±Infinity and NaN from there on.
+  it('rescorlaWagner rejects a diverging recursion (α·Σx² > 2) when it overflows, naming the trial (TF_NON_FINITE)', () => {
+    const n = 200;
+    const x = 70;
+    const alpha = 0.1;
+    const firstOverflow = Math.ceil(Math.log(Number.MAX_VALUE) / Math.log(Math.abs(1 - alpha * x * x)));
+    expect(firstOverflow).toBe(115);
+    const cues = { data: new Float64Array(n).fill(x), rows: n, cols: 1 };
+    expect(() => rescorlaWagner(new Float64Array(n).fill(1), { alpha, cues })).toThrow(
+      expect.objectContaining({ code: 'TF_NON_FINITE', details: expect.objectContaining({ trial: firstOverflow }) }),
+    );
+    // Just below the overflow the recursion is still finite and follows the closed form (LMS, above).
+    const short = rescorlaWagner(new Float64Array(firstOverflow).fill(1), { alpha, cues: { data: new Float64Array(firstOverflow).fill(x), rows: firstOverflow, cols: 1 } });
+    expectAllClose(short.delta[100]!, Math.pow(1 - alpha * x * x, 100), { rtol: 1e-11, label: 'δ_100 = (1 − αx²)^100' });
+  });
+
   it('rescorlaWagner rejects a NaN outcome naming the trial (TF_NON_FINITE)', () => {
     expect(() => rescorlaWagner([1, 0, NaN, 1])).toThrow(expect.objectContaining({ code: 'TF_NON_FINITE', details: expect.objectContaining({ trial: 2 }) }));
   });

@@ -59,6 +59,23 @@ describe('tdLambda', () => {
     expectAllClose(res.weights, [0.225, 0.5], { rtol: 1e-15 });
   });
 
+  // TD(0), one tabular state revisited with γ = 0: δ_t = r − w_t and w ← w + αδ, so δ_t = r(1 − α)^t
+  // (closed form of the linear recursion). With α = 3 (allowed: α > 0), |δ_t| = 2^t is finite up to
+  // t = 1023 but the update of step 1023 gives w = 1 − 2^1024 = −Infinity; that last update has no δ
+  // after it, so the weights came back as [−Infinity] with every δ finite.
+  it('tdLambda rejects a recursion that diverges, also when only the last update overflows (TF_NON_FINITE)', () => {
+    const n = 1024;
+    expect(Number.isFinite(Math.pow(2, n - 1))).toBe(true);
+    expect(Number.isFinite(1 - Math.pow(2, n))).toBe(false);
+    const run = (steps: number) => tdLambda([{ states: new Int32Array(steps), rewards: new Float64Array(steps).fill(1) }], { nStates: 1, alpha: 3, gamma: 0 });
+    expect(() => run(n)).toThrow(expect.objectContaining({ code: 'TF_NON_FINITE', details: expect.objectContaining({ episode: 0, step: n - 1, diverged: true }) }));
+    // One step fewer stays finite and follows the closed form δ_t = (1 − α)^t = (−2)^t.
+    const ok = run(n - 1);
+    // Past t ≈ 53 the "1 +" is below one ulp of 2^t, so recursion and closed form differ by a few ulps.
+    expectAllClose(ok.delta[n - 2]!, Math.pow(-2, n - 2), { rtol: 1e-13, label: 'δ_1022 = (−2)^1022' });
+    expectAllClose(ok.weights[0]!, 1 - Math.pow(-2, n - 1), { rtol: 1e-13, label: 'w = 1 − (−2)^1023' });
+  });
+
   it('tdLambda rejects a state outside 0 … nStates − 1 and rewards of the wrong length', () => {
     expect(() => tdLambda([{ states: [0, 5], rewards: [0, 1] }], { nStates: 5 })).toThrow(expect.objectContaining({ code: 'TF_BAD_OPTION' }));
     expect(() => tdLambda([{ states: [0, 1], rewards: [0] }], { nStates: 5 })).toThrow(expect.objectContaining({ code: 'TF_SHAPE_MISMATCH' }));
@@ -77,6 +94,15 @@ describe('microstimuli', () => {
     expectAllClose(row0[9]!, 0.398942, { atol: 5e-7, rtol: 0 });
     expectAllClose(row50[4]!, 0.174402, { atol: 5e-7, rtol: 0 });
     expectAllClose(Math.pow(0.985, 50), 0.46969, { atol: 5e-6, rtol: 0, label: 'trace height y(50)' });
+  });
+
+  // At t = 0 the trace is y = 1 = i/m for the last microstimulus, so its Gaussian factor is exp(0) = 1 and
+  // x_m(0) = (2π)^(−1/2) = 0.3989422804014327 for ANY width σ > 0 (Ludvig et al. 2008, eq. for x_i). With
+  // σ = 1e-170, 2σ² underflows to 0 and u²/(2σ²) was 0/0 = NaN.
+  it('microstimuli keeps x_m(0) = (2π)^(−1/2) for a width so small that 2σ² underflows', () => {
+    const x = microstimuli(3, { count: 4, width: 1e-170 });
+    expect(x.data.every((v) => !Number.isNaN(v))).toBe(true);
+    expectAllClose(x.data[3]!, 1 / Math.sqrt(2 * Math.PI), { rtol: 1e-15, label: 'x_m(0)' });
   });
 
   it('microstimuli rejects a decay outside (0, 1)', () => {

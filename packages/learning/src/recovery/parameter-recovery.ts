@@ -123,9 +123,13 @@ export interface ParameterRecovery {
   readonly fitted: Matrix;
   /** Standard errors of the fits, agents × k (NaN at a bound). */
   readonly se: Matrix;
-  /** Pearson correlation of true and fitted values across agents, per parameter. */
+  /**
+   * Pearson correlation of true and fitted values across agents, per parameter. NaN (with warning
+   * 'correlation-undefined') when the true or the fitted values are the same for every agent, e.g. a
+   * parameter fixed by a range [v, v].
+   */
   readonly correlation: Float64Array;
-  /** Spearman rank correlation of true and fitted values (robust to a few fits at a bound). */
+  /** Spearman rank correlation of true and fitted values (robust to a few fits at a bound); NaN as `correlation`. */
   readonly rankCorrelation: Float64Array;
   /** Number of agents whose fitted value is at a bound (or diverging), per parameter. */
   readonly nAtBound: Int32Array;
@@ -133,9 +137,9 @@ export interface ParameterRecovery {
   readonly bias: Float64Array;
   /** Root mean squared error, per parameter. */
   readonly rmse: Float64Array;
-  /** Correlations among the fitted parameters across agents, k × k (e.g. the α–β trade-off). */
+  /** Correlations among the fitted parameters across agents, k × k (e.g. the α–β trade-off); NaN off the diagonal for a constant column. */
   readonly fittedCorrelation: Matrix;
-  /** Correlations among the true parameters (≈ 0 for independent draws; the baseline for the above). */
+  /** Correlations among the true parameters (≈ 0 for independent draws; the baseline for the above); NaN off the diagonal for a fixed parameter. */
   readonly trueCorrelation: Matrix;
   readonly nll: Float64Array;
   /** Starts reaching the best NLL, per agent. */
@@ -171,8 +175,19 @@ function columnRanks(a: Matrix, j: number): Matrix {
   return { data: out, rows: n, cols: 1 };
 }
 
-/** Pearson correlation of two columns of agents × k matrices. */
+/** True when every agent has the same value in column j (zero variance: correlations undefined). */
+function constantColumn(a: Matrix, j: number): boolean {
+  const v0 = a.data[j]!;
+  for (let r = 1; r < a.rows; r++) if (a.data[r * a.cols + j] !== v0) return false;
+  return true;
+}
+
+/**
+ * Pearson correlation of two columns of agents × k matrices; NaN when either column is constant
+ * (undefined; the centred column would otherwise hold the rounding residue of the mean, not 0).
+ */
 function columnCorrelation(a: Matrix, i: number, b: Matrix, j: number): number {
+  if (constantColumn(a, i) || constantColumn(b, j)) return NaN;
   const n = a.rows;
   let ma = 0;
   let mb = 0;
@@ -204,6 +219,8 @@ function columnCorrelation(a: Matrix, i: number, b: Matrix, j: number): number {
  * true–fitted correlation, bias and RMSE, and the correlations among fitted parameters (a strong
  * α–β correlation flags a trade-off). Agent i uses only `rng(seed).stream(i)`, so `workers` > 1
  * splits agents across threads (node:worker_threads) with results identical to a serial run.
+ * A parameter whose true (or fitted) values are the same for every agent — a range [v, v] — has no
+ * defined correlation: NaN, with a 'correlation-undefined' warning.
  *
  * @returns a Promise (worker threads are asynchronous).
  * @throws {TuningforkError} TF_BAD_OPTION / TF_UNKNOWN_OPTION (options).
@@ -315,6 +332,18 @@ export async function parameterRecovery(options: ParameterRecoveryOptions = {}):
     }
   }
   const warnings = [...run.warnings, ...(em ? em.warnings : [])];
+  const constantTruth = m.params.filter((_, j) => constantColumn(T, j));
+  const constantFitted = m.params.filter((_, j) => constantColumn(F, j));
+  if (constantTruth.length > 0 || constantFitted.length > 0) {
+    const parts: string[] = [];
+    if (constantTruth.length > 0) parts.push(`the true values of ${constantTruth.join(', ')} are the same for every agent (a range [v, v] fixes them)`);
+    if (constantFitted.length > 0) parts.push(`every agent's fitted ${constantFitted.join(', ')} is the same (e.g. all at a bound)`);
+    warnings.push({
+      code: 'correlation-undefined',
+      message: `${fn}: ${parts.join('; ')}: their correlations (correlation, rankCorrelation, fittedCorrelation / trueCorrelation) are undefined and reported as NaN; bias and RMSE are still given.`,
+      details: { constantTruth, constantFitted },
+    });
+  }
   const nc = nAgents - converged.reduce((s, x) => s + x, 0);
   if (nc > 0 && !em) warnings.push({ code: 'fits-not-converged', message: `${fn}: ${nc} of ${nAgents} fits did not meet the gradient tolerance.`, details: { count: nc } });
   return {

@@ -47,7 +47,9 @@ export function microstimuli(nSteps: number, options: MicrostimuliOptions = {}):
     const y = Math.pow(d, t);
     for (let i = 1; i <= m; i++) {
       const u = y - i / m;
-      out[t * m + i - 1] = y * norm * Math.exp(-(u * u) / (2 * sigma * sigma));
+      // u = 0 exactly (the trace at i/m, e.g. t = 0, i = m): the factor is exp(0) = 1 for every σ, also
+      // when 2σ² underflows to 0 (σ ≲ 1e-162), where u²/(2σ²) would be 0/0 = NaN.
+      out[t * m + i - 1] = y * norm * (u === 0 ? 1 : Math.exp(-(u * u) / (2 * sigma * sigma)));
     }
   }
   return { data: out, rows: nSteps, cols: m };

@@ -48,7 +48,9 @@ export interface TdLambdaResult {
  * @param episodes - Episodes in the order they are experienced.
  * @throws {TuningforkError} TF_BAD_OPTION (α ≤ 0, γ or λ outside [0, 1], a state index outside
  * 0 … nStates − 1, feature widths that differ between episodes), TF_SHAPE_MISMATCH (rewards and
- * steps of different lengths), TF_NON_FINITE (a NaN reward or feature, naming episode and step).
+ * steps of different lengths), TF_NON_FINITE (a NaN reward or feature, naming episode and step; or
+ * finite inputs on which the recursion diverges until a value or weight overflows — α too large for
+ * the features and traces — naming episode and step, `details.diverged: true`).
  *
  * @example
  * ```ts
@@ -125,6 +127,7 @@ export function tdLambda(episodes: readonly TdEpisode[], options: TdLambdaOption
       const vNext = valueAt(t + 1);
       const d = r + gamma * vNext - vNow;
       if (!Number.isFinite(d)) {
+        if (Number.isFinite(r) && rowFinite(ep, t, nf) && rowFinite(ep, t + 1, nf)) throw diverged(fn, e, t, alpha, `δ is ${d}`);
         throw new TuningforkError('TF_NON_FINITE', `${fn}: episode ${e}, step ${t}: δ is ${d} (reward ${formatValue(r)}); rewards and features must be finite.`, { fn, episode: e, step: t });
       }
       delta[pos] = d;
@@ -138,10 +141,33 @@ export function tdLambda(episodes: readonly TdEpisode[], options: TdLambdaOption
         const x = ep.features.data;
         for (let i = 0, o2 = t * nf; i < nf; i++) z[i] = z[i]! + x[o2 + i]!;
       }
-      for (let i = 0; i < nf; i++) w[i] = w[i]! + alpha * d * z[i]!;
+      let finite = true;
+      for (let i = 0; i < nf; i++) {
+        w[i] = w[i]! + alpha * d * z[i]!;
+        if (!Number.isFinite(w[i]!)) finite = false;
+      }
+      // The last step's update is not followed by another δ, so an overflow there must be caught here.
+      if (!finite) throw diverged(fn, e, t, alpha, 'a weight overflowed');
       vNow = valueAt(t + 1);
     }
   }
   offsets[episodes.length] = pos;
   return { weights: w, delta, value, offsets };
+}
+
+/** True when the features of step t of a feature episode are finite (tabular steps and steps past the end: true). */
+function rowFinite(ep: TdEpisode, t: number, nf: number): boolean {
+  if (!('features' in ep) || t >= ep.features.rows) return true;
+  const x = ep.features.data;
+  for (let i = t * nf; i < (t + 1) * nf; i++) if (!Number.isFinite(x[i]!)) return false;
+  return true;
+}
+
+/** TF_NON_FINITE for a run that overflowed on finite inputs (step size too large). */
+function diverged(fn: string, e: number, t: number, alpha: number, what: string): TuningforkError {
+  return new TuningforkError(
+    'TF_NON_FINITE',
+    `${fn}: episode ${e}, step ${t}: ${what}: with finite rewards and features, TD(λ) diverged — alpha ${formatValue(alpha)} is too large for these features and traces. Lower alpha (or lambda), or rescale the features.`,
+    { fn, episode: e, step: t, diverged: true },
+  );
 }
