@@ -1,7 +1,7 @@
 import { mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { Float64, Int64, Table, Utf8, tableToIPC, vectorFromArray } from 'apache-arrow';
+import { Float64, Int64, Table, Uint64, Utf8, tableToIPC, vectorFromArray } from 'apache-arrow';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
 import { decodeArrow, encodeArrow, readArrow, writeArrow } from '../src/index.js';
@@ -86,6 +86,23 @@ describe('decodeArrow', () => {
     expect(t.nulls).toEqual({ x: 1, s: 1 }); // Arrow nulls (validity bitmap)
     const big = new Table({ n: vectorFromArray([1n, -(2n ** 40n)], new Int64()) });
     expect(Array.from(decodeArrow(tableToIPC(big)).columns.n!)).toEqual([1, -(2 ** 40)]);
+  });
+
+  // Reference: IEEE 754 binary64 has a 53-bit significand, so every integer of magnitude
+  // ≤ 2^53 and the power 2^60 are exact doubles, while 2^53 + 1 and 2^60 + 1 are not (they
+  // would be read as 2^53 and 2^60).
+  it('decodeArrow reads 64-bit integers that are exact doubles and throws TF_BAD_CELL for one a double would round', () => {
+    const exact = new Table({ n: vectorFromArray([2n ** 53n, -(2n ** 53n), 2n ** 60n, null], new Int64()) });
+    expect(Array.from(decodeArrow(tableToIPC(exact)).columns.n!)).toEqual([2 ** 53, -(2 ** 53), 2 ** 60, NaN]);
+    for (const v of [2n ** 53n + 1n, -(2n ** 60n) - 1n]) {
+      const t = new Table({ ok: vectorFromArray([1n, 2n], new Int64()), n: vectorFromArray([0n, v], new Int64()) });
+      expect(() => decodeArrow(tableToIPC(t), { label: 'ticks.arrow' })).toThrow(code('TF_BAD_CELL', { file: 'ticks.arrow', column: 'n', row: 1 }));
+    }
+    const u = new Table({ n: vectorFromArray([2n ** 64n - 1n], new Uint64()) });
+    expect(() => decodeArrow(tableToIPC(u))).toThrow(code('TF_BAD_CELL', { column: 'n', row: 0 }));
+    // Read as text, the exact integer is kept.
+    const asText = new Table({ id: vectorFromArray([2n ** 53n + 1n], new Int64()) });
+    expect(decodeArrow(tableToIPC(asText), { columns: [{ name: 'id', type: 'string' }] }).strings.id).toEqual(['9007199254740993']);
   });
 
   it('decodeArrow selects, renames and requires columns as readCsv does', () => {

@@ -96,6 +96,21 @@ describe('validateManifest', () => {
   });
 });
 
+describe('validateManifest: a file listed twice', () => {
+  it('validateManifest throws TF_BAD_MANIFEST for an events or spikes file listed twice with the same columns (its rows would count twice)', () => {
+    const m = (files: Record<string, unknown>[]) => ({ schemaVersion: 1, session: 's', files });
+    // Two spellings of one path, the second on a device clock: the same events twice.
+    expect(() => validateManifest(m([{ kind: 'events', path: 'raw/events.csv' }, { kind: 'events', path: './raw/../raw/events.csv', clock: { syncEvent: 'sync', reference: { events: 'cue' } } }])))
+      .toThrow(code('TF_BAD_MANIFEST', { path: 'files[1].path', previous: 'files[0]' }));
+    // Different unit prefixes would hide the clash between the units of one spikes file.
+    expect(() => validateManifest(m([{ kind: 'spikes', path: 'spikes.csv', unitPrefix: 'A/' }, { kind: 'events', path: 'ev.csv' }, { kind: 'spikes', path: 'spikes.csv', unitPrefix: 'B/' }])))
+      .toThrow(code('TF_BAD_MANIFEST', { path: 'files[2].path', previous: 'files[0]' }));
+    // Other columns of the same file (another name column) are other events: allowed.
+    const ok = validateManifest(m([{ kind: 'events', path: 'ev.csv' }, { kind: 'events', path: 'ev.csv', columns: { name: 'port' } }]));
+    expect(ok.files.map((f) => f.at)).toEqual(['files[0]', 'files[1]']);
+  });
+});
+
 describe('validateManifest: events on another device\'s clock', () => {
   const withClock = (clock: unknown, extraFiles: Record<string, unknown>[] = []) => ({
     schemaVersion: 1, session: 's',

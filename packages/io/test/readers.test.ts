@@ -204,4 +204,35 @@ describe('readTrials', () => {
     await expect(readTrials(file('trail,choice\n1,2\n'))).rejects.toThrow(code('TF_MISSING_COLUMN', { suggestion: 'trail' }));
     await expect(readTrials(file('trial\n1\n'), { columns: { cuetime: 'x' } as never })).rejects.toThrow(code('TF_UNKNOWN_OPTION', { suggestion: 'cueTime' }));
   });
+
+  // Reference: the documented rule (ReadTrialsOptions.choiceLabels): a cell holding a label gets
+  // that label's index. With labels ['1', '2'] (two ports named 1 and 2), cells 1, 2, 1 are the
+  // labels '1', '2', '1', i.e. options [0, 1, 0], whether the file is text or Arrow integers.
+  it('readTrials maps choices to numeric-looking choiceLabels the same way from CSV text and from Arrow integers', async () => {
+    const expected = [0, 1, 0];
+    const csv = await readTrials(file('trial,choice\n1,1\n2,2\n3,1\n'), { choiceLabels: ['1', '2'] });
+    const arrow = await readTrials(file(encodeArrow({ trial: Int32Array.of(1, 2, 3), choice: Int32Array.of(1, 2, 1) }), 'arrow'), { choiceLabels: ['1', '2'] });
+    expect(Array.from(csv.trials.choice)).toEqual(expected);
+    expect(Array.from(arrow.trials.choice)).toEqual(expected);
+    expect([csv.trials.nOptions, arrow.trials.nOptions]).toEqual([2, 2]);
+  });
+
+  it('readTrials throws TF_BAD_CELL for a number that is not one of numeric-looking choiceLabels (it cannot also be an index)', async () => {
+    // With labels '1' and '2', a cell 0 or 3 could be an index or a third port's label.
+    for (const cell of ['0', '3']) {
+      const p = file(`trial,choice\n1,1\n2,${cell}\n`);
+      await expect(readTrials(p, { choiceLabels: ['1', '2'] })).rejects.toThrow(code('TF_BAD_CELL', { file: p, column: 'choice', line: 3, text: cell }));
+    }
+    const a = file(encodeArrow({ trial: Int32Array.of(1, 2), choice: Int32Array.of(2, 3) }), 'arrow');
+    await expect(readTrials(a, { choiceLabels: ['1', '2'] })).rejects.toThrow(code('TF_BAD_CELL', { file: a, column: 'choice', row: 1 }));
+  });
+
+  // Reference: ECMAScript Int32Array stores ToInt32(v) (ECMA-262 §7.1.6), so 10000000000 would
+  // be stored as 1410065408; the largest Int32 is 2^31 − 1 = 2147483647.
+  it('readTrials throws TF_BAD_CELL for a choice index too large for the Int32 choice column instead of wrapping it', async () => {
+    const p = file('trial,choice\n1,0\n2,10000000000\n');
+    await expect(readTrials(p)).rejects.toThrow(code('TF_BAD_CELL', { file: p, column: 'choice', line: 3 }));
+    const a = file(encodeArrow({ trial: Int32Array.of(1, 2), choice: Float64Array.of(1, 1e10) }), 'arrow');
+    await expect(readTrials(a)).rejects.toThrow(code('TF_BAD_CELL', { file: a, column: 'choice', row: 1 }));
+  });
 });

@@ -35,7 +35,13 @@ function isNumeric(t: DataType): boolean {
   return DataType.isFloat(t) || DataType.isInt(t) || DataType.isBool(t);
 }
 
-/** A numeric field as Float64Array: a view into the IPC bytes for one null-free Float64 batch. */
+/** 2^53: every integer below this magnitude is an exact double (and so is 2^53 itself). */
+const TWO_53 = 9007199254740992;
+
+/**
+ * A numeric field as Float64Array: a view into the IPC bytes for one null-free Float64 batch.
+ * A 64-bit integer without an exact double throws TF_BAD_CELL instead of being rounded.
+ */
 function numericColumn(fn: string, file: string, name: string, vec: Vector): Float64Array {
   const t = vec.type as DataType;
   if (!isNumeric(t)) {
@@ -56,7 +62,13 @@ function numericColumn(fn: string, file: string, name: string, vec: Vector): Flo
       // 64-bit integers (BigInt64Array), booleans (bit-packed), half floats: element by element.
       for (let i = 0; i < n; i++) {
         const v = vec.get(at + i) as number | bigint | boolean | null;
-        out[at + i] = v === null ? NaN : Number(v);
+        const x = v === null ? NaN : Number(v);
+        // A double below 2^53 in magnitude comes from an integer below 2^53, which is exact; from
+        // 2^53 on, the integer must convert back unchanged (2^53 + 1 would be read as 2^53).
+        if (typeof v === 'bigint' && !(x > -TWO_53 && x < TWO_53) && BigInt(x) !== v) {
+          throw new TuningforkError('TF_BAD_CELL', `${fn}: file '${file}', column '${name}', row ${at + i + 1}: the ${String(t)} value ${v} has no exact double (the nearest is ${x}); reading it as a number would change it. Read the column with type: 'string' (e.g. an identifier), or store it in a unit that keeps it below 2^53.`, { fn, file, column: name, row: at + i, text: String(v) });
+        }
+        out[at + i] = x;
       }
     }
     if (d.nullCount > 0) for (let i = 0; i < n; i++) if (!d.getValid(i)) out[at + i] = NaN;
@@ -71,7 +83,9 @@ function numericColumn(fn: string, file: string, name: string, vec: Vector): Flo
  * A Float64 field stored in one record batch without nulls is returned zero-copy: its
  * Float64Array is a view into `bytes` (so it keeps `bytes` alive and changes if `bytes`
  * changes). Other numeric types (Float32, integers, booleans), several batches or nulls give a
- * new Float64Array, with nulls as NaN. Text fields (Utf8, LargeUtf8, dictionary-encoded text)
+ * new Float64Array, with nulls as NaN. A 64-bit integer read as a number must be an exact double
+ * (every integer of magnitude ≤ 2^53 is): a larger one that a double would round is an error,
+ * never a silently changed value. Text fields (Utf8, LargeUtf8, dictionary-encoded text)
  * give string arrays with nulls as ''.
  *
  * @param bytes - Arrow IPC bytes (the random-access file format starting with `ARROW1`, or the stream format).
@@ -80,7 +94,8 @@ function numericColumn(fn: string, file: string, name: string, vec: Vector): Flo
  *   Arrow types and schema metadata.
  * @throws {TuningforkError} TF_BAD_FILE when the bytes are not Arrow IPC; TF_MISSING_COLUMN for a
  *   required field that is absent (with the closest name); TF_BAD_CELL when a non-numeric field
- *   is read as numbers; TF_NON_FINITE for NaN, null or ±Infinity in a `finite` column (naming the row).
+ *   is read as numbers or a 64-bit integer has no exact double (naming the row); TF_NON_FINITE
+ *   for NaN, null or ±Infinity in a `finite` column (naming the row).
  *
  * @example
  * ```ts

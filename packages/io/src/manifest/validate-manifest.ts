@@ -189,7 +189,8 @@ function clockSpec(c: Checker, v: unknown, at: string): DeviceClockSpec {
  * continuous channel carrying them), plus `"barcodes": { "bitSec": 0.01, "nBits": 16 }` when the
  * pulses are barcodes (device codes = the sync events' values). A line reference must name a
  * continuous channel of the manifest. `notes` (text) is allowed anywhere an entry is. Site and channel
- * names must be unique; at most one trials file.
+ * names must be unique; at most one trials file; an events or spikes file may not be listed twice
+ * with the same columns (its rows would count twice, whatever its `unitPrefix` or `clock`).
  *
  * Hand-written checks (no schema library): every error names the JSON path of the field, e.g.
  * `files[2].columns.time`, and an unknown or misspelled key or enum value gets the closest
@@ -314,6 +315,18 @@ export function validateManifest(value: unknown, options: ValidateManifestOption
       }
     }
   });
+  // An events or spikes file read twice with the same columns would count its rows twice
+  // (different unitPrefix values or a clock on one entry would hide that): reject it.
+  const readAt = new Map<string, string>();
+  for (const f of files) {
+    if (f.kind !== 'events' && f.kind !== 'spikes') continue;
+    const key = JSON.stringify([f.kind, f.resolvedPath, f.columns]);
+    const prev = readAt.get(key);
+    if (prev !== undefined) {
+      c.fail(join(f.at, 'path'), `lists '${f.path}' again with the same columns as ${prev}: its ${f.kind === 'events' ? 'events' : 'spikes'} would be counted twice. Remove one of the two entries.`, { previous: prev });
+    }
+    readAt.set(key, f.at);
+  }
   for (const f of files) {
     if (f.kind !== 'events' || f.clock === null || !('line' in f.clock.reference)) continue;
     const line = f.clock.reference.line;

@@ -8,6 +8,10 @@ export type TrialField = 'trial' | 'cueTime' | 'choiceTime' | 'choice' | 'outcom
 
 const FIELDS: readonly TrialField[] = ['trial', 'cueTime', 'choiceTime', 'choice', 'outcomeTime', 'reward'];
 const TIME_FIELDS: readonly TrialField[] = ['cueTime', 'choiceTime', 'outcomeTime'];
+/** An option index as text: decimal digits only. */
+const DIGITS = /^\d+$/;
+/** Choices are stored in an Int32Array. */
+const INT32_MAX = 2147483647;
 
 /** Options of readTrials. */
 export interface ReadTrialsOptions {
@@ -21,7 +25,13 @@ export interface ReadTrialsOptions {
   columns?: Readonly<Partial<Record<TrialField, string>>>;
   /** Unit of the time columns (cueTime, choiceTime, outcomeTime); converted to seconds. @defaultValue 's' */
   timeUnit?: 's' | 'ms';
-  /** Choice labels in option order: a choice cell may hold a label (its index is the option) or the index itself. @defaultValue ['left', 'right'] */
+  /**
+   * Choice labels in option order: a choice cell may hold a label (its index is the option) or
+   * the index itself. Cells are matched as text, numbers of an Arrow column too (1 → '1'). When
+   * a label is itself a number ('1', '2' for two ports), a number cell must be one of the
+   * labels: it is never read as an index.
+   * @defaultValue ['left', 'right']
+   */
   choiceLabels?: readonly string[];
   /** Number of options; 0 means max(choiceLabels.length, largest choice + 1). @defaultValue 0 */
   nOptions?: number;
@@ -91,8 +101,9 @@ function numbersOf(fn: string, located: LocatedTable, column: string, g: Getter,
  * @returns `{ trials, present, extra, extraStrings, warnings }`.
  * @throws {TuningforkError} TF_BAD_FILE, TF_MISSING_COLUMN (no trial column, with the closest
  *   name) as readCsv; TF_BAD_CELL for a non-integer or repeated trial number, a non-numeric
- *   time or reward, or a choice that is neither an index below nOptions nor a label (naming
- *   file, column and line).
+ *   time or reward, or a choice that is neither an index below nOptions (and below 2^31) nor a
+ *   label, or, with number-like labels, a number that is not a label (naming file, column and
+ *   line).
  *
  * @example
  * ```ts
@@ -167,21 +178,28 @@ export async function readTrials(path: string, options: ReadTrialsOptions = {}):
   if (fields.includes(choiceCol)) {
     present.push('choice');
     const g = getter(choiceCol);
+    // Labels that are themselves digits ('1', '2' for ports 1 and 2) make a digit cell that is no
+    // label ambiguous (an index, or an unlisted port?): such cells are rejected, not guessed.
+    const numericLabels = o.choiceLabels.some((l) => DIGITS.test(l));
     for (let k = 0; k < n; k++) {
       const i = order[k]!;
-      let c: number;
+      // Numbers (Arrow) go through their text, so a file gives the same choices as CSV or Arrow.
+      let text: string;
       if (g.numbers !== undefined) {
         const v = g.numbers[i]!;
         if (v !== v) continue;
-        c = v;
+        text = String(v);
       } else {
-        const text = g.texts![i]!.trim();
+        text = g.texts![i]!.trim();
         if (text === '' || nullTokens.texts.has(text)) continue;
-        const label = o.choiceLabels.indexOf(text);
-        c = label >= 0 ? label : /^\d+$/.test(text) ? Number(text) : NaN;
       }
-      if (!Number.isInteger(c) || c < 0 || (fixedOptions > 0 && c >= fixedOptions)) {
-        cellError(fn, located, choiceCol, i, g.texts?.[i] ?? String(c), `a choice: an option index 0…${fixedOptions > 0 ? fixedOptions - 1 : 'n'} or one of the labels ${o.choiceLabels.map((l) => `'${l}'`).join(', ')}`);
+      const label = o.choiceLabels.indexOf(text);
+      const c = label >= 0 ? label : DIGITS.test(text) && !numericLabels ? Number(text) : NaN;
+      if (!Number.isInteger(c) || c < 0 || c > INT32_MAX || (fixedOptions > 0 && c >= fixedOptions)) {
+        const expected = numericLabels
+          ? `a choice: one of the labels ${o.choiceLabels.map((l) => `'${l}'`).join(', ')} (the labels are numbers, so a number that is not a label cannot be read as an option index; list every option in choiceLabels)`
+          : `a choice: an option index 0…${fixedOptions > 0 ? fixedOptions - 1 : INT32_MAX} or one of the labels ${o.choiceLabels.map((l) => `'${l}'`).join(', ')}`;
+        cellError(fn, located, choiceCol, i, g.texts?.[i] ?? text, expected);
       }
       choice[k] = c;
       if (c > maxChoice) maxChoice = c;
