@@ -9,10 +9,10 @@ import { join } from 'node:path';
 import { makeEventTable, rng } from '@tuningfork/core';
 import type { PhotometrySite, UniformSignal } from '@tuningfork/core';
 import { loadSession, parseCsv, readEvents, readTrace, validateManifest } from '@tuningfork/io';
-import { binSpikes, conditionSite, fitControl, sosfiltfilt, butterworth } from '@tuningfork/signal';
+import { binSpikes, conditionSite, estimateSnr, fitControl, lockInDemodulate, sosfiltfilt, butterworth } from '@tuningfork/signal';
 import { decodeBarcodes, fitClockMap, mapDeviceTimes, movementOnsets, periEventMatrix, lickBouts } from '@tuningfork/align';
-import { adjustPValues, bootstrapTimecourse, clusterPermutationTest } from '@tuningfork/stats';
-import { choiceLogLikelihood, fitChoiceModel } from '@tuningfork/learning';
+import { adjustPValues, bootstrapTimecourse, clusterPermutationTest, significantRunsFromPValues } from '@tuningfork/stats';
+import { choiceLogLikelihood, fitChoiceModel, rescorlaWagner } from '@tuningfork/learning';
 import { designMatrix, fitPoissonGLM, fitRidgeCV, raisedCosineBasis } from '@tuningfork/encode';
 import { periEventFigure, sessionReport } from '@tuningfork/report';
 import { simulateSession } from '@tuningfork/simulate';
@@ -80,6 +80,8 @@ export const CATALOGUE: readonly BadInput[] = [
   { id: 'signal-zero-rate', area: 'alignment', what: 'a sample rate of zero', run: () => sosfiltfilt(butterworth({ order: 4, cutoffHz: 10, sampleRate: 0 }), noise(100)), expect: { code: 'TF_BAD_SAMPLE_RATE' } },
   { id: 'signal-cutoff-above-nyquist', area: 'alignment', what: 'a low-pass cutoff above Nyquist', run: () => butterworth({ order: 4, cutoffHz: 80, sampleRate: 100 }), expect: { code: 'TF_BAD_OPTION' } },
   { id: 'signal-short-for-filter', area: 'alignment', what: 'a signal shorter than the filter padding', run: () => sosfiltfilt(butterworth({ order: 4, cutoffHz: 10, sampleRate: 100 }), noise(10)), expect: { code: 'TF_TOO_FEW_SAMPLES' } },
+  { id: 'signal-lockin-swapped-drives', area: 'ingest', what: 'LED drives passed in another order than their carriers', run: () => { const fs = 10000; const n = 20000; const tone = (f: number, ph: number) => Float64Array.from({ length: n }, (_, i) => Math.sin(2 * Math.PI * f * (i / fs) + ph)); const det = tone(217, 0.3).map((v, i) => 2 * v + 0.7 * Math.sin(2 * Math.PI * 319 * (i / fs) + 1.1)); return lockInDemodulate(sig(det, fs), { carriersHz: [217, 319], references: [sig(tone(319, 1.1), fs), sig(tone(217, 0.3), fs)] }); }, expect: { code: 'TF_DEGENERATE_SIGNAL' } },
+  { id: 'signal-snr-constant', area: 'ingest', what: 'SNR of a channel with no measurable noise (constant)', run: () => estimateSnr(sig(new Float64Array(2000).fill(5))), expect: { code: 'TF_DEGENERATE_SIGNAL' } },
   { id: 'signal-control-fit-nan', area: 'alignment', what: 'a control fit with NaN samples', run: () => fitControl(Float64Array.of(1, 2, NaN, 4), Float64Array.of(2, 4, 6, 8)), expect: { code: 'TF_NON_FINITE' } },
   { id: 'spikes-nan', area: 'alignment', what: 'a NaN spike time', run: () => binSpikes(Float64Array.of(0.3, NaN, 0.2), { binSec: 0.1, endSec: 1 }), expect: { code: 'TF_NON_FINITE' } },
   // ---- alignment ----
@@ -97,7 +99,9 @@ export const CATALOGUE: readonly BadInput[] = [
   { id: 'movement-flat', area: 'alignment', what: 'an accelerometer that never moves (zero robust sd)', run: () => movementOnsets(sig(new Float64Array(1000).fill(1)), { baseline: 'median' }), expect: { code: 'TF_DEGENERATE_SIGNAL' } },
   { id: 'licks-unsorted', area: 'alignment', what: 'lick times out of order (sorted, reported)', run: () => lickBouts(Float64Array.of(1, 0.5, 2)), expect: { warning: 'licks-sorted' } },
   { id: 'licks-nan', area: 'alignment', what: 'a NaN lick time', run: () => lickBouts(Float64Array.of(1, NaN, 2)), expect: { code: 'TF_BAD_EVENTS' } },
+  { id: 'learning-rw-diverging', area: 'models', what: 'Rescorla–Wagner with cue intensities in dB (α·x² ≫ 2: the recursion diverges)', run: () => rescorlaWagner(new Float64Array(200).fill(1), { alpha: 0.1, cues: { data: new Float64Array(200).fill(70), rows: 200, cols: 1 } }), expect: { code: 'TF_NON_FINITE' } },
   // ---- statistics ----
+  { id: 'runs-from-t-values', area: 'statistics', what: 't values passed where p-values belong', run: () => significantRunsFromPValues([0.4, -2.1, -3.5, -2.8], { sampleRate: 10 }), expect: { code: 'TF_BAD_VALUE' } },
   { id: 'bootstrap-one-trial', area: 'statistics', what: 'a band from a single trial', run: () => bootstrapTimecourse({ data: Float64Array.of(1, 2, 3), rows: 1, cols: 3 }), expect: { code: 'TF_TOO_FEW_SAMPLES' } },
   { id: 'bootstrap-shape', area: 'statistics', what: 'a matrix whose data length disagrees with rows × cols', run: () => bootstrapTimecourse({ data: new Float64Array(5), rows: 2, cols: 3 }), expect: { code: 'TF_SHAPE_MISMATCH' } },
   { id: 'bootstrap-constant-bca', area: 'statistics', what: 'a constant statistic with BCa (degenerate)', run: () => bootstrapTimecourse({ data: new Float64Array(20).fill(3), rows: 10, cols: 2 }, { method: 'bca' }), expect: { warning: 'degenerate-bca' } },
