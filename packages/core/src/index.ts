@@ -27,5 +27,5 @@ export { threadBudget } from './threads.js';
 // Low-level: a minimal WebAssembly assembler for numeric kernels (used by stats and encode).
 export { wasmApi, WASM_PAGE, uleb, sleb, I32, F64, V128, op, whileLoop, ifElse, kernelModule, compileKernel } from './wasm.js';
 export type { WasmMemory, WasmModule, WasmInstance, KernelSpec } from './wasm.js';
-export { sha256, sha256Typed, sha256File, hashInput, canonicalJson, makeProvenance } from './provenance.js';
+export { sha256, sha256Typed, sha256File, sha256FilesInBackground, hashInput, canonicalJson, makeProvenance } from './provenance.js';
 export type { Provenance, ProvenanceInput } from './provenance.js';

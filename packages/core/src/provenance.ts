@@ -1,5 +1,7 @@
 import { createHash } from 'node:crypto';
 import { createReadStream } from 'node:fs';
+import { Worker } from 'node:worker_threads';
+import { threadBudget } from './threads.js';
 import { VERSION } from './version.js';
 
 /** One hashed input of a computation. */
@@ -43,6 +45,55 @@ export async function sha256File(path: string): Promise<ProvenanceInput> {
     bytes += (chunk as Buffer).length;
   }
   return { name: path, sha256: h.digest('hex'), bytes };
+}
+
+/** The hashing thread of sha256FilesInBackground (CommonJS source, run with eval). */
+const HASH_WORKER = `
+const { parentPort, workerData } = require('node:worker_threads');
+const { createHash } = require('node:crypto');
+const { createReadStream } = require('node:fs');
+(async () => {
+  const out = [];
+  for (const path of workerData) {
+    const h = createHash('sha256');
+    let bytes = 0;
+    for await (const chunk of createReadStream(path)) { h.update(chunk); bytes += chunk.length; }
+    out.push({ name: path, sha256: h.digest('hex'), bytes });
+  }
+  parentPort.postMessage({ ok: true, out });
+})().catch((e) => parentPort.postMessage({ ok: false, message: String(e && e.message), code: e && e.code }));
+`;
+
+/**
+ * Start hashing files (SHA-256, streamed) on a separate thread, so that the caller can read and
+ * decode them meanwhile; await the promise for the same results as sha256File on each path, in
+ * order. With a thread budget of 1 (TUNINGFORK_THREADS=1) the files are hashed on this thread,
+ * interleaved with the caller's own asynchronous reads. The promise never rejects before it is awaited and handled: a failure
+ * (e.g. a missing file) rejects it with the file system's error.
+ */
+export function sha256FilesInBackground(paths: readonly string[]): Promise<ProvenanceInput[]> {
+  const list = [...paths];
+  if (threadBudget() < 2 || list.length === 0) {
+    const run = async () => {
+      const out: ProvenanceInput[] = [];
+      for (const p of list) out.push(await sha256File(p));
+      return out;
+    };
+    const p = run();
+    p.catch(() => {}); // handled by whoever awaits it
+    return p;
+  }
+  const p = new Promise<ProvenanceInput[]>((resolve, reject) => {
+    const w = new Worker(HASH_WORKER, { eval: true, workerData: list });
+    w.once('message', (m: { ok: boolean; out?: ProvenanceInput[]; message?: string; code?: string }) => {
+      void w.terminate();
+      if (m.ok) resolve(m.out!);
+      else reject(Object.assign(new Error(m.message), { code: m.code }));
+    });
+    w.once('error', reject);
+  });
+  p.catch(() => {}); // handled by whoever awaits it
+  return p;
 }
 
 /** Hash an in-memory input under a label. */

@@ -1,8 +1,10 @@
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import {
   canonicalJson, checkInteger, checkOneOf, checkPositive, eventTimes, hashInput, inferSampleRate, makeEventTable,
-  makeProvenance, resolveOptions, sha256, timeToIndex, TuningforkError, VERSION, asMatrix, selectKth,
+  makeProvenance, resolveOptions, sha256, sha256File, sha256FilesInBackground, timeToIndex, TuningforkError, VERSION, asMatrix, selectKth,
 } from '../src/index.js';
 import fc from 'fast-check';
 
@@ -72,6 +74,25 @@ describe('provenance', () => {
     // Reference: FIPS PUB 180-2, Appendix B.1.
     expect(sha256('abc')).toBe('ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad');
     expect(hashInput('x', new Float64Array([1])).bytes).toBe(8);
+  });
+  it('sha256FilesInBackground gives the FIPS digest and the streamed digest of each file, on a thread or inline', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'tf-hash-'));
+    const abc = join(dir, 'abc.txt');
+    const big = join(dir, 'big.bin');
+    writeFileSync(abc, 'abc');
+    writeFileSync(big, Buffer.alloc(3_000_000, 7)); // several stream chunks
+    // Reference: FIPS PUB 180-2, Appendix B.1 (the digest of 'abc').
+    const want = [{ name: abc, sha256: 'ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad', bytes: 3 }, await sha256File(big)];
+    expect(await sha256FilesInBackground([abc, big])).toEqual(want);
+    const saved = process.env['TUNINGFORK_THREADS'];
+    process.env['TUNINGFORK_THREADS'] = '1';
+    try {
+      expect(await sha256FilesInBackground([abc, big])).toEqual(want);
+    } finally {
+      if (saved === undefined) delete process.env['TUNINGFORK_THREADS'];
+      else process.env['TUNINGFORK_THREADS'] = saved;
+    }
+    await expect(sha256FilesInBackground([join(dir, 'missing')])).rejects.toMatchObject({ code: 'ENOENT' });
   });
   it('canonicalJson sorts keys at every level so equal content hashes equally', () => {
     expect(canonicalJson({ b: 1, a: { d: [1, 2], c: new Float64Array([0.5]) } })).toBe('{"a":{"c":[0.5],"d":[1,2]},"b":1}');

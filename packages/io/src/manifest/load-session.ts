@@ -1,5 +1,5 @@
 import {
-  TuningforkError, isTuningforkError, makeEventTable, resolveOptions, sha256File,
+  TuningforkError, isTuningforkError, makeEventTable, resolveOptions, sha256FilesInBackground,
   type DeviceEvents, type EventTable, type PhotometrySite, type ProvenanceInput, type ResultWarning, type Session, type SpikeTrain,
   type TrialTable, type UniformSignal,
 } from '@tuningfork/core';
@@ -67,7 +67,8 @@ async function traceOf(f: ManifestFile & { kind: 'photometry' | 'continuous' }, 
  * kept in `session.deviceEvents` with their clock spec, for the pipeline's sync step (the
  * tuningfork package's syncDeviceEvents) to map. The session's `start`/`end` span every signal,
  * session-clock event, spike and trial time.
- * Each input's SHA-256 is computed with core sha256File, for provenance.
+ * Each input's SHA-256 is computed for provenance on a separate thread while the files are read
+ * (core sha256FilesInBackground; on this thread with a thread budget of 1).
  *
  * @param manifestPath - Path of the manifest JSON; relative file paths resolve against its folder.
  * @param options - `hash` (default true).
@@ -86,6 +87,8 @@ async function traceOf(f: ManifestFile & { kind: 'photometry' | 'continuous' }, 
 export async function loadSession(manifestPath: string, options: LoadSessionOptions = {}): Promise<LoadedSession> {
   const o = resolveOptions('loadSession', DEFAULTS, options);
   const manifest = await readManifest(manifestPath);
+  // Hash the inputs on another thread while this one reads and decodes them.
+  const hashes = o.hash ? sha256FilesInBackground([manifestPath, ...manifest.files.map((f) => f.resolvedPath)]) : null;
   const warnings: ResultWarning[] = [];
   const sites: PhotometrySite[] = [];
   const continuous: Record<string, UniformSignal> = {};
@@ -196,9 +199,10 @@ export async function loadSession(manifestPath: string, options: LoadSessionOpti
     ...(deviceEvents.length > 0 ? { deviceEvents } : {}),
   };
   const inputs: ProvenanceInput[] = [];
-  if (o.hash) {
-    inputs.push({ ...(await sha256File(manifestPath)), name: manifestPath });
-    for (const f of manifest.files) inputs.push({ ...(await sha256File(f.resolvedPath)), name: f.path });
+  if (hashes) {
+    const h = await hashes;
+    inputs.push({ ...h[0]!, name: manifestPath });
+    manifest.files.forEach((f, i) => inputs.push({ ...h[i + 1]!, name: f.path }));
   }
   return {
     session,
