@@ -69,21 +69,25 @@ export function syncDeviceEvents(session: Session, options: SyncDeviceEventsOpti
     const { map, deviceSync } = fitDevice(session, d, o.fit);
     warnings.push(...map.warnings.map((w) => ({ ...w, details: { ...w.details, source: d.source } })));
     const first = map.pieces[0]!.deviceStart;
-    let mapped = 0;
+    const keep: number[] = [];
+    const pieces: number[] = [];
     let outside = 0;
     for (let i = 0; i < d.events.time.length; i++) {
       if (deviceSync.has(i)) continue;
-      const t = d.events.time[i]!;
-      const piece = pieceFor(map, t);
-      if (piece < 0) {
-        outside++;
-        continue;
+      const piece = pieceFor(map, d.events.time[i]!);
+      if (piece < 0) outside++;
+      else {
+        keep.push(i);
+        pieces.push(piece);
       }
-      time.push(mapDeviceTimes(map, [t], { piece: [piece] })[0]!);
+    }
+    const onSession = mapDeviceTimes(map, keep.map((i) => d.events.time[i]!), { piece: pieces });
+    keep.forEach((i, k) => {
+      time.push(onSession[k]!);
       name.push(d.events.name[i]!);
       value.push(d.events.value[i]!);
-      mapped++;
-    }
+    });
+    const mapped = keep.length;
     if (outside > 0) {
       warnings.push({
         code: 'device-events-outside-sync',

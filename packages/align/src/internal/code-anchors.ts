@@ -105,13 +105,16 @@ function placeStretch(A: Float64Array, B: Float64Array, codesB: Float64Array, wh
   if (d.length === 0) return 0;
   d.sort((x, y) => x - y);
   const width = 0.01 + 1e-3 * (B[hi]! - B[lo]!);
+  // Densest window [d[a], d[a] + width] counting only offsets outside [skipFrom, skipTo]
+  // (prefix counts keep it linear after the sort).
   const densest = (skipFrom: number, skipTo: number): { start: number; count: number } => {
+    const kept = new Int32Array(d.length + 1);
+    for (let q = 0; q < d.length; q++) kept[q + 1] = kept[q]! + (d[q]! >= skipFrom && d[q]! <= skipTo ? 0 : 1);
     let best = { start: NaN, count: 0 };
     for (let a = 0, b = 0; a < d.length; a++) {
       if (d[a]! >= skipFrom && d[a]! <= skipTo) continue;
       while (b < d.length && d[b]! - d[a]! <= width) b++;
-      let count = 0;
-      for (let q = a; q < b; q++) if (!(d[q]! >= skipFrom && d[q]! <= skipTo)) count++;
+      const count = kept[b]! - kept[a]!;
       if (count > best.count) best = { start: d[a]!, count };
     }
     return best;
