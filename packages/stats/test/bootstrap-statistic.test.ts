@@ -156,3 +156,23 @@ describe('bootstrapStatistic', () => {
     }), { seed: 17, numRuns: 40 });
   });
 });
+
+describe('resamples too few for the confidence level', () => {
+  // Rule (common practice; from memory of Davison & Hinkley 1997 §4.2): a two-sided interval at
+  // level 1 − α needs (B + 1)·α/2 ≥ 1 replicate in each tail, i.e. B ≥ 39 at 95 % and B ≥ 199 at 99 %.
+  const codes = (w: readonly { code: string }[]) => w.map((x) => x.code);
+  it('warns below B = 39 at 95 % and below B = 199 at 99 %, never at or above', () => {
+    const reps = (B: number) => Float64Array.from({ length: B }, (_, i) => i);
+    expect(codes(intervalFromReplicates(reps(38), { estimate: 19 }).warnings)).toContain('resamples-too-few-for-level');
+    expect(codes(intervalFromReplicates(reps(39), { estimate: 19 }).warnings)).not.toContain('resamples-too-few-for-level');
+    expect(codes(intervalFromReplicates(reps(198), { estimate: 99, confidenceLevel: 0.99 }).warnings)).toContain('resamples-too-few-for-level');
+    expect(codes(intervalFromReplicates(reps(199), { estimate: 99, confidenceLevel: 0.99 }).warnings)).not.toContain('resamples-too-few-for-level');
+    const w = intervalFromReplicates(reps(20), { estimate: 10 }).warnings.find((x) => x.code === 'resamples-too-few-for-level');
+    expect(w?.details).toMatchObject({ resamples: 20, minimum: 39 });
+  });
+  it('bootstrapStatistic reports it for its own resamples', () => {
+    const x = Float64Array.from({ length: 30 }, (_, i) => Math.sin(i));
+    expect(codes(bootstrapStatistic(x, meanOf, { resamples: 20, seed: 1 }).warnings)).toContain('resamples-too-few-for-level');
+    expect(codes(bootstrapStatistic(x, meanOf, { resamples: 2000, seed: 1 }).warnings)).not.toContain('resamples-too-few-for-level');
+  });
+});

@@ -182,3 +182,13 @@ describe('bootstrapTimecourseDifference', () => {
     expect(() => bootstrapTimecourseDifference(noisy(5, 3, 1), noisy(5, 4, 1))).toThrow(expect.objectContaining({ code: 'TF_SHAPE_MISMATCH' }));
   });
 });
+
+describe('bootstrapTimecourse with too few resamples for the level', () => {
+  it('warns (resamples-too-few-for-level) below B = 39 at 95 %, not at B = 39 (rule in bootstrap-statistic.test.ts)', () => {
+    const r = rng(5);
+    const m = matrixOf(Array.from({ length: 12 }, () => Array.from({ length: 4 }, () => r.normal())));
+    const codes = (B: number) => bootstrapTimecourse(m, { resamples: B, seed: 1 }).warnings.map((w) => w.code);
+    expect(codes(38)).toContain('resamples-too-few-for-level');
+    expect(codes(39)).not.toContain('resamples-too-few-for-level');
+  });
+});

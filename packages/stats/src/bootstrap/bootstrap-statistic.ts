@@ -5,7 +5,7 @@ import {
   intervalInPlace, makeIntervalScratch,
 } from '../internal/interval-core.js';
 import { asRows } from '../internal/rows.js';
-import { checkConfidence, checkResamples, checkSeed, warn } from '../internal/validate.js';
+import { checkConfidence, checkResamples, checkSeed, resamplesForLevel, warn } from '../internal/validate.js';
 import { jackknifeValues } from './jackknife.js';
 import type { SampleStatistic } from './jackknife.js';
 
@@ -130,6 +130,7 @@ export function bootstrapStatistic(
   const warnings: ResultWarning[] = [];
   if (m < B) warnings.push(warn('replicates-dropped', `${fn}: ${B - m} of ${B} bootstrap replicates were not finite and were dropped; the interval uses the other ${m}.`, { dropped: B - m, resamples: B }));
   warnings.push(...flagWarnings(fn, s.flags));
+  warnings.push(...resamplesForLevel(fn, m, level));
   return {
     estimate, low: s.low, high: s.high, standardError: m > 1 ? Math.sqrt(ss / (m - 1)) : NaN, bias: mean - estimate,
     z0: s.z0, acceleration: a, replicates, nonFinite: B - m, method, confidenceLevel: level, resamples: B, seed, warnings,
@@ -219,5 +220,6 @@ export function intervalFromReplicates(
   const warnings: ResultWarning[] = [];
   if (m < src.length) warnings.push(warn('replicates-dropped', `${fn}: ${src.length - m} of ${src.length} replicates were not finite and were dropped.`, { dropped: src.length - m }));
   warnings.push(...flagWarnings(fn, s.flags));
+  warnings.push(...resamplesForLevel(fn, m, level));
   return { low: s.low, high: s.high, z0: s.z0, acceleration: a, nonFinite: src.length - m, warnings, method, confidenceLevel: level };
 }

@@ -3,7 +3,7 @@ import type { Matrix, ResultWarning } from '@tuningfork/core';
 import { multinomialPlan } from '../internal/count-plan.js';
 import { MEAN_SPEC, prepareCondition, runTimecourse } from '../internal/timecourse-engine.js';
 import type { NanMode, StatSpec } from '../internal/timecourse-engine.js';
-import { checkConfidence, checkMatrix, checkResamples, checkSameCols, checkSeed, matrixOffsets } from '../internal/validate.js';
+import { checkConfidence, checkMatrix, checkResamples, checkSameCols, checkSeed, matrixOffsets, resamplesForLevel } from '../internal/validate.js';
 
 /**
  * A statistic of one time bin computed from weighted moments, so that every resample is one
@@ -179,7 +179,7 @@ export function bootstrapTimecourse(matrix: Matrix, options: BootstrapTimecourse
   });
   return {
     estimate: r.estimate, low: r.low, high: r.high, standardError: r.standardError, z0: r.z0, acceleration: r.acceleration,
-    replicates: r.replicates, warnings: r.warnings, offsets, statistic: o.spec.name, method: o.method, confidenceLevel: o.confidenceLevel,
+    replicates: r.replicates, warnings: [...r.warnings, ...resamplesForLevel(fn, o.resamples, o.confidenceLevel)], offsets, statistic: o.spec.name, method: o.method, confidenceLevel: o.confidenceLevel,
     resamples: o.resamples, seed: o.seed, trials: [m.rows], trialsPerBin: [a.count],
   };
 }
@@ -217,7 +217,7 @@ export function bootstrapTimecourseDifference(a: Matrix, b: Matrix, options: Boo
   });
   return {
     estimate: r.estimate, low: r.low, high: r.high, standardError: r.standardError, z0: r.z0, acceleration: r.acceleration,
-    replicates: r.replicates, warnings: r.warnings, offsets, statistic: `${o.spec.name} difference`, method: o.method, confidenceLevel: o.confidenceLevel,
+    replicates: r.replicates, warnings: [...r.warnings, ...resamplesForLevel(fn, o.resamples, o.confidenceLevel)], offsets, statistic: `${o.spec.name} difference`, method: o.method, confidenceLevel: o.confidenceLevel,
     resamples: o.resamples, seed: o.seed, trials: [ma.rows, mb.rows], trialsPerBin: [ca.count, cb.count],
   };
 }

@@ -2,7 +2,7 @@ import { resolveOptions, rng, toFloat64, TuningforkError } from '@tuningfork/cor
 import type { Matrix, ResultWarning, Rng } from '@tuningfork/core';
 import { CountPlan } from '../internal/count-plan.js';
 import { MEAN_SPEC, prepareCondition, runTimecourse } from '../internal/timecourse-engine.js';
-import { checkConfidence, checkMatrix, checkResamples, checkSameCols, checkSeed, matrixOffsets, warn } from '../internal/validate.js';
+import { checkConfidence, checkMatrix, checkResamples, checkSameCols, checkSeed, matrixOffsets, resamplesForLevel, warn } from '../internal/validate.js';
 
 /** Trials × time bins with the animal (and optionally session) each trial came from. */
 export interface NestedTrials {
@@ -167,7 +167,7 @@ function run(fn: string, groups: readonly NestedTrials[], options: HierarchicalB
     fn, spec: MEAN_SPEC, bca: false, alpha: (1 - level) / 2, keepReplicates: false, offsets, nan: 'propagate', shareAboveZero: true,
   });
   const animals = trees.map((t) => t.sessionsOf.length);
-  const warnings: ResultWarning[] = [...res.warnings];
+  const warnings: ResultWarning[] = [...res.warnings, ...resamplesForLevel(fn, R, level)];
   animals.forEach((A, k) => {
     if (A < 5) {
       warnings.push(warn('few-top-level-units', `${fn}: ${names[k]} has ${A} animal(s); with fewer than 5 top-level units no bootstrap interval is reliable (INFERENCE.md §1.3). Report the number of animals with the band.`, { group: names[k], animals: A }));

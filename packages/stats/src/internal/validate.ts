@@ -56,6 +56,20 @@ export function checkSeed(fn: string, v: unknown): number {
   return checkInteger(fn, 'seed', v, 0, Number.MAX_SAFE_INTEGER);
 }
 
+/**
+ * Warning when B resamples cannot resolve a two-sided interval at `level`: with (B + 1)·(1 − level)/2
+ * < 1 the requested tail quantiles lie beyond the most extreme replicates, so the endpoints come
+ * from those extremes and the interval's nominal level is not reached (the usual minimum is B = 39 for
+ * 95 %; from memory of Davison & Hinkley 1997, §4.2, and common practice; B ≥ 1000 is advised for
+ * percentile and BCa intervals, Efron & Tibshirani 1993, §19.3, from memory).
+ */
+export function resamplesForLevel(fn: string, B: number, level: number): ResultWarning[] {
+  const tail = (B + 1) * ((1 - level) / 2);
+  if (tail >= 1) return [];
+  const need = Math.ceil(2 / (1 - level)) - 1;
+  return [warn('resamples-too-few-for-level', `${fn}: ${B} resamples cannot resolve a ${(level * 100).toFixed(1)} % interval: its tails hold fewer than one replicate ((B + 1)·(1 − level)/2 = ${tail.toFixed(2)}), so the endpoints come from the most extreme replicates and the interval cannot reach the stated level. Use at least ${need} resamples (1000 or more is usual).`, { resamples: B, confidenceLevel: level, minimum: need })];
+}
+
 /** Up to `max` indices where `pred` holds, for warning details. */
 export function firstIndices(n: number, pred: (i: number) => boolean, max = 5): number[] {
   const out: number[] = [];
