@@ -91,6 +91,8 @@ export function sha256FilesInBackground(paths: readonly string[]): Promise<Prove
       else reject(Object.assign(new Error(m.message), { code: m.code }));
     });
     w.once('error', reject);
+    // A thread that ends without a message (killed, out of memory) must not leave the caller waiting.
+    w.once('exit', (code) => reject(new Error(`sha256FilesInBackground: the hashing thread exited (code ${code}) before reporting`)));
   });
   p.catch(() => {}); // handled by whoever awaits it
   return p;
