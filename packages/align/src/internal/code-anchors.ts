@@ -97,7 +97,7 @@ function placeStretch(A: Float64Array, B: Float64Array, codesB: Float64Array, wh
   const d: number[] = [];
   let withCode = 0;
   for (let j = lo; j <= hi; j++) {
-    const list = codesB[j]! === codesB[j]! ? where.get(codesB[j]!) : undefined;
+    const list = candidatesOf(where, codesB[j]!);
     if (!list) continue;
     withCode++;
     for (const i of list) d.push(A[i]! - B[j]!);
@@ -125,7 +125,7 @@ function placeStretch(A: Float64Array, B: Float64Array, codesB: Float64Array, wh
   if (runnerUp.count * 2 > top.count) return withCode;
   let ambiguous = 0;
   for (let j = lo; j <= hi; j++) {
-    const list = codesB[j]! === codesB[j]! ? where.get(codesB[j]!) : undefined;
+    const list = candidatesOf(where, codesB[j]!);
     if (!list) continue;
     let found = -1;
     let n = 0;
@@ -140,4 +140,9 @@ function placeStretch(A: Float64Array, B: Float64Array, codesB: Float64Array, wh
     else ambiguous++;
   }
   return ambiguous;
+}
+
+/** Reference indices carrying code c (undefined for NaN, an undecoded code, or a code the reference lacks). */
+function candidatesOf(where: Map<number, number[]>, c: number): number[] | undefined {
+  return c === c ? where.get(c) : undefined;
 }
